@@ -1,0 +1,144 @@
+"""Parquet tables that describe themselves: column units, descriptions, UCDs and provenance.
+
+Every table cinderclock writes carries
+
+* per field, Arrow field metadata ``unit``, ``description`` and ``ucd`` (IVOA UCD1+ words);
+* in the schema metadata, the key ``cinderclock`` holding JSON with ``schema_version``, the same
+  column descriptions (so tools that drop field metadata still see them) and ``provenance``.
+
+Writes are atomic: the table goes to a temporary file in the same folder and is renamed over the
+target only when complete, so a run killed mid-write never leaves a partial file behind that a
+later stage would accept.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+from dataclasses import asdict, dataclass
+from pathlib import Path
+
+from .errors import InputError
+
+META_KEY = b"cinderclock"
+
+
+@dataclass(frozen=True)
+class Column:
+    """Description of one table column.
+
+    Parameters
+    ----------
+    unit : str
+        Unit in astropy's string form ("" for dimensionless, "mag", "K", "pc", "solMass", ...).
+    description : str
+        One sentence a collaborator can read without asking.
+    ucd : str
+        IVOA UCD1+ word(s), e.g. ``"pos.parallax"``; empty if none fits.
+    """
+
+    unit: str
+    description: str
+    ucd: str = ""
+
+
+def column_specs_from_json(data):
+    """Rebuild ``{name: Column}`` from its JSON form."""
+    return {name: Column(**spec) for name, spec in data.items()}
+
+
+def write_table(df, path, columns, provenance, *, stage=None):
+    """Write ``df`` to Parquet at ``path`` atomically, with column and provenance metadata.
+
+    Parameters
+    ----------
+    df : pandas.DataFrame
+        The table. Every column must be described in ``columns``.
+    path : str or Path
+        Target file. Its folder is created if needed.
+    columns : dict of str to Column
+        Description of each column (extra entries are ignored).
+    provenance : dict
+        JSON-serialisable provenance block (see :mod:`cinderclock.provenance`).
+    stage : str, optional
+        Name of the stage writing the table, recorded in the metadata.
+    """
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+
+    from . import SCHEMA_VERSION
+
+    missing = [c for c in df.columns if c not in columns]
+    if missing:
+        raise ValueError(f"columns without a description: {missing}")
+    table = pa.Table.from_pandas(df, preserve_index=False)
+    fields = []
+    for field in table.schema:
+        spec = columns[field.name]
+        fields.append(field.with_metadata({
+            b"unit": spec.unit.encode(),
+            b"description": spec.description.encode(),
+            b"ucd": spec.ucd.encode(),
+        }))
+    block = {
+        "schema_version": SCHEMA_VERSION,
+        "stage": stage,
+        "columns": {c: asdict(columns[c]) for c in df.columns},
+        "provenance": provenance,
+    }
+    schema = pa.schema(fields, metadata={META_KEY: json.dumps(block, sort_keys=True).encode()})
+    table = table.cast(schema)
+    path = Path(path)
+    path.parent.mkdir(parents=True, exist_ok=True)
+    tmp = path.with_name(f".{path.name}.partial-{os.getpid()}")
+    try:
+        pq.write_table(table, tmp, compression="zstd")
+        with open(tmp, "rb") as fh:
+            os.fsync(fh.fileno())
+        os.replace(tmp, path)
+    finally:
+        if tmp.exists():
+            tmp.unlink()
+
+
+def read_metadata(path):
+    """Return the ``cinderclock`` metadata block of a Parquet file (empty dict if absent)."""
+    import pyarrow.parquet as pq
+
+    try:
+        schema = pq.read_schema(path)
+    except Exception as exc:  # pyarrow raises several types for damaged files
+        raise InputError(f"not a readable Parquet file ({exc.__class__.__name__}: {exc})", path) from None
+    raw = (schema.metadata or {}).get(META_KEY)
+    return json.loads(raw) if raw else {}
+
+
+def read_table(path, columns=None):
+    """Read a cinderclock Parquet table.
+
+    Parameters
+    ----------
+    path : str or Path
+        File to read.
+    columns : list of str, optional
+        Read only these columns.
+
+    Returns
+    -------
+    df : pandas.DataFrame
+    specs : dict of str to Column
+        Descriptions of the columns read.
+    meta : dict
+        The whole metadata block (``schema_version``, ``stage``, ``provenance``, ...).
+    """
+    import pyarrow.parquet as pq
+
+    meta = read_metadata(path)
+    try:
+        table = pq.read_table(path, columns=columns)
+    except Exception as exc:
+        raise InputError(f"not a readable Parquet file ({exc.__class__.__name__}: {exc})", path) from None
+    df = table.to_pandas()
+    specs = column_specs_from_json(meta.get("columns", {}))
+    specs = {c: specs[c] for c in df.columns if c in specs}
+    return df, specs, meta
