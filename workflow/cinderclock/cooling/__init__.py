@@ -1,0 +1,1 @@
+"""Cooling models of white dwarfs: luminosity to cooling age."""

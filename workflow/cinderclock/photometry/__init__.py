@@ -1,0 +1,1 @@
+"""Synthetic photometry: passbands, magnitudes of model spectra, bolometric corrections."""
