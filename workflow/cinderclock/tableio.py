@@ -142,3 +142,77 @@ def read_table(path, columns=None):
     specs = column_specs_from_json(meta.get("columns", {}))
     specs = {c: specs[c] for c in df.columns if c in specs}
     return df, specs, meta
+
+
+class StreamingTableWriter:
+    """Write a large table shard by shard, atomically, with the same metadata as :func:`write_table`.
+
+    Use as a context manager; call :meth:`write` with each DataFrame. Every frame is cast to the
+    schema of the first non-empty frame (so empty shards with untyped columns do not break it).
+    The target appears only when the context exits without an exception.
+    """
+
+    def __init__(self, path, columns, provenance, stage=None):
+        self.path = Path(path)
+        self.columns = columns
+        self.provenance = provenance
+        self.stage = stage
+        self._writer = None
+        self._schema = None
+        self._pending = []
+        self._tmp = self.path.with_name(f".{self.path.name}.partial-{os.getpid()}")
+
+    def __enter__(self):
+        self.path.parent.mkdir(parents=True, exist_ok=True)
+        return self
+
+    def _schema_for(self, df):
+        import pyarrow as pa
+
+        from . import SCHEMA_VERSION
+
+        table = pa.Table.from_pandas(df, preserve_index=False)
+        fields = []
+        for f in table.schema:
+            spec = self.columns[f.name]
+            fields.append(f.with_metadata({b"unit": spec.unit.encode(), b"description": spec.description.encode(),
+                                           b"ucd": spec.ucd.encode()}))
+        block = {"schema_version": SCHEMA_VERSION, "stage": self.stage,
+                 "columns": {c: asdict(self.columns[c]) for c in df.columns}, "provenance": self.provenance}
+        return pa.schema(fields, metadata={META_KEY: json.dumps(block, sort_keys=True).encode()})
+
+    def write(self, df):
+        import pyarrow as pa
+        import pyarrow.parquet as pq
+
+        if self._writer is None:
+            if len(df) == 0:
+                self._pending.append(df)
+                return
+            self._schema = self._schema_for(df)
+            self._writer = pq.ParquetWriter(self._tmp, self._schema, compression="zstd")
+            for p in self._pending:
+                self.write(p)
+            self._pending = []
+        if len(df):
+            self._writer.write_table(pa.Table.from_pandas(df, preserve_index=False).cast(self._schema))
+
+    def __exit__(self, exc_type, exc, tb):
+        try:
+            if exc_type is None:
+                if self._writer is None:               # nothing but empty frames: an empty table
+                    frame = self._pending[0] if self._pending else None
+                    if frame is None:
+                        raise ValueError("no frames written")
+                    write_table(frame, self.path, self.columns, self.provenance, stage=self.stage)
+                    return False
+                self._writer.close()
+                with open(self._tmp, "rb") as fh:
+                    os.fsync(fh.fileno())
+                os.replace(self._tmp, self.path)
+            elif self._writer is not None:
+                self._writer.close()
+        finally:
+            if self._tmp.exists():
+                self._tmp.unlink()
+        return False

@@ -1,0 +1,21 @@
+# cinderclock: survey catalogue of white-dwarf candidates -> vetted parameters and ages.
+# Run from the repository root:  snakemake --cores 2   (see README.md)
+from cinderclock.config import check_config
+
+configfile: "config/config.yaml"
+check_config(config)  # JSON Schema validation with defaults (workflow/schemas/config.schema.yaml)
+
+include: "workflow/rules/common.smk"
+include: "workflow/rules/ingest.smk"
+include: "workflow/rules/models.smk"
+include: "workflow/rules/select.smk"
+include: "workflow/rules/luminosity.smk"
+include: "workflow/rules/mass.smk"
+include: "workflow/rules/cooling.smk"
+include: "workflow/rules/final.smk"
+
+
+rule all:
+    default_target: True
+    input:
+        rules.final.output,

@@ -1,0 +1,202 @@
+"""Reading survey catalogues: CSV, Parquet, FITS and VOTable, with the units they carry.
+
+Readers return the raw columns the configuration asks for, under the user's own names, plus the
+unit each file declares for them (FITS TUNIT, VOTable unit attributes, astropy-written Parquet
+or cinderclock field metadata). Every fault is raised as :class:`cinderclock.errors.InputError`
+naming the file and, where it applies, the row and column.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from .errors import InputError
+
+FORMATS = ("csv", "parquet", "fits", "votable")
+_SUFFIXES = {
+    ".csv": "csv", ".txt": "csv", ".tsv": "csv", ".gz": None,
+    ".parquet": "parquet", ".pq": "parquet",
+    ".fits": "fits", ".fit": "fits", ".fts": "fits",
+    ".vot": "votable", ".xml": "votable", ".votable": "votable",
+}
+
+
+@dataclass
+class RawCatalogue:
+    """Columns read from a catalogue file.
+
+    Attributes
+    ----------
+    data : pandas.DataFrame
+        The requested columns under the user's names, one row per readable input row.
+    rows : numpy.ndarray of int64
+        Position of each row of ``data`` in the file (0-based, header excluded).
+    units : dict of str to str
+        Unit declared by the file for a column, where it declares one.
+    malformed : list of (int, str)
+        Rows that could not be parsed at all (position, raw text): CSV rows with a wrong field count.
+    """
+
+    path: str
+    data: pd.DataFrame
+    rows: np.ndarray
+    units: dict = field(default_factory=dict)
+    malformed: list = field(default_factory=list)
+
+
+def detect_format(path, fmt="auto"):
+    """Format name from the configuration or, for ``auto``, from the file name."""
+    if fmt != "auto":
+        return fmt
+    suffixes = [s.lower() for s in Path(path).suffixes]
+    for s in reversed(suffixes):
+        kind = _SUFFIXES.get(s)
+        if kind:
+            return kind
+    raise InputError(f"cannot tell the file format from the name; set catalogue.format to one of {', '.join(FORMATS)}",
+                     path)
+
+
+def _check_columns(path, available, wanted):
+    missing = [c for c in wanted if c not in available]
+    if missing:
+        shown = ", ".join(list(available)[:20])
+        raise InputError(f"column(s) {', '.join(repr(m) for m in missing)} named in the configuration are not in the "
+                         f"file; it has: {shown}{' ...' if len(available) > 20 else ''}", path)
+
+
+def _read_csv(path, wanted):
+    import pyarrow as pa
+    import pyarrow.csv as pcsv
+
+    malformed = []
+
+    def on_invalid(row):
+        # line numbers are 1-based and count the header; data rows start at line 2
+        malformed.append((int(row.number) - 2 if row.number is not None else -1, row.text))
+        return "skip"
+
+    delimiter = "\t" if str(path).lower().endswith((".tsv", ".tsv.gz")) else ","
+    try:
+        header = pcsv.open_csv(path, parse_options=pcsv.ParseOptions(delimiter=delimiter,
+                                                                     invalid_row_handler=lambda row: "skip"),
+                               read_options=pcsv.ReadOptions(use_threads=False, block_size=1 << 16)).schema.names
+    except (pa.ArrowInvalid, StopIteration) as exc:
+        if "Empty CSV file" in str(exc) or isinstance(exc, StopIteration):
+            raise InputError("the catalogue is empty (no header line)", path) from None
+        raise InputError(f"cannot read the CSV header ({exc})", path) from None
+    _check_columns(path, header, wanted)
+    try:
+        table = pcsv.read_csv(
+            path,
+            read_options=pcsv.ReadOptions(use_threads=False),
+            parse_options=pcsv.ParseOptions(delimiter=delimiter, invalid_row_handler=on_invalid),
+            convert_options=pcsv.ConvertOptions(include_columns=list(wanted),
+                                                column_types={c: pa.string() for c in wanted},
+                                                strings_can_be_null=True),
+        )
+    except pa.ArrowInvalid as exc:
+        raise InputError(f"cannot parse the CSV file ({exc})", path) from None
+    data = table.to_pandas()
+    bad_rows = sorted(r for r, _ in malformed if r >= 0)
+    n_total = len(data) + len(malformed)
+    keep = np.setdiff1d(np.arange(n_total, dtype=np.int64), np.asarray(bad_rows, dtype=np.int64))
+    rows = keep[: len(data)]
+    return data, rows, {}, malformed
+
+
+def _read_parquet(path, wanted):
+    import pyarrow.parquet as pq
+
+    try:
+        schema = pq.read_schema(path)
+    except Exception as exc:
+        raise InputError(f"not a readable Parquet file ({exc.__class__.__name__}: {exc})", path) from None
+    _check_columns(path, schema.names, wanted)
+    if schema.metadata and b"table_meta_yaml" in schema.metadata:   # written by astropy: keep its units
+        return _read_astropy(path, wanted, "parquet")
+    try:
+        table = pq.read_table(path, columns=list(wanted))
+    except Exception as exc:
+        raise InputError(f"not a readable Parquet file ({exc.__class__.__name__}: {exc})", path) from None
+    units = {}
+    for f in table.schema:
+        unit = (f.metadata or {}).get(b"unit")
+        if unit:
+            units[f.name] = unit.decode()
+    data = table.to_pandas()
+    return data, np.arange(len(data), dtype=np.int64), units, []
+
+
+def _read_astropy(path, wanted, fmt):
+    import warnings
+
+    from astropy.table import Table
+
+    kind = {"fits": "fits", "votable": "votable", "parquet": "parquet"}[fmt]
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            table = Table.read(path, format=kind)
+    except Exception as exc:
+        raise InputError(f"not a readable {fmt.upper() if fmt != 'votable' else 'VOTable'} file "
+                         f"({exc.__class__.__name__}: {str(exc).splitlines()[0] if str(exc) else ''})", path) from None
+    _check_columns(path, table.colnames, wanted)
+    units = {c: str(table[c].unit) for c in wanted if getattr(table[c], "unit", None) is not None}
+    cols = {}
+    for c in wanted:
+        col = table[c]
+        if getattr(col, "mask", None) is not None and np.any(col.mask):
+            if col.dtype.kind in "fiu":
+                values = np.asarray(col.filled(np.nan) if col.dtype.kind == "f" else col.astype(float).filled(np.nan))
+            else:
+                values = np.asarray(col.astype(str).filled(""), dtype=object)
+        else:
+            values = np.asarray(col)
+        if values.dtype.kind in "SU":
+            values = values.astype(str).astype(object)
+        if values.dtype.byteorder not in ("=", "|"):
+            values = values.astype(values.dtype.newbyteorder("="))
+        cols[c] = values
+    data = pd.DataFrame(cols)
+    return data, np.arange(len(data), dtype=np.int64), units, []
+
+
+def read_catalogue(path, wanted, fmt="auto"):
+    """Read the columns ``wanted`` (user names) from a catalogue file.
+
+    Parameters
+    ----------
+    path : str or Path
+        CSV (comma- or tab-separated, optionally gzipped), Parquet, FITS (first table HDU) or VOTable.
+    wanted : list of str
+        Column names as they appear in the file.
+    fmt : str
+        ``auto`` or one of :data:`FORMATS`.
+
+    Returns
+    -------
+    RawCatalogue
+    """
+    path = str(path)
+    if not Path(path).exists():
+        raise InputError("the catalogue file does not exist", path)
+    if Path(path).stat().st_size == 0:
+        raise InputError("the catalogue is empty (zero bytes)", path)
+    kind = detect_format(path, fmt)
+    wanted = list(dict.fromkeys(wanted))
+    if kind == "csv":
+        data, rows, units, malformed = _read_csv(path, wanted)
+    elif kind == "parquet":
+        data, rows, units, malformed = _read_parquet(path, wanted)
+    elif kind in ("fits", "votable"):
+        data, rows, units, malformed = _read_astropy(path, wanted, kind)
+    else:
+        raise InputError(f"unknown catalogue format '{kind}'; use one of {', '.join(FORMATS)}", path)
+    if len(data) == 0 and not malformed:
+        raise InputError("the catalogue has a header but no data rows", path)
+    return RawCatalogue(path=path, data=data, rows=rows, units=units, malformed=malformed)

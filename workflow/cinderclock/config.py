@@ -1,0 +1,119 @@
+"""Configuration: safe YAML loading, JSON-Schema validation with defaults, per-stage settings.
+
+The schema (``workflow/schemas/config.schema.yaml``) is the single reference for every key, its
+type, allowed values and default. :func:`stage_settings` cuts the configuration into the part each
+stage depends on: the workflow passes exactly that part as the rule's ``params``, so changing one
+stage's settings reruns only that stage and the stages after it.
+"""
+
+from __future__ import annotations
+
+import copy
+from pathlib import Path
+
+from .errors import ConfigError
+
+SCHEMA_PATH = Path(__file__).resolve().parents[1] / "schemas" / "config.schema.yaml"
+
+#: stage -> top-level configuration sections it depends on
+STAGE_SECTIONS = {
+    "ingest": ("catalogue", "bands", "shards"),
+    "select": ("select", "astrometry", "bands"),
+    "photometry_model": ("luminosity", "bands"),
+    "luminosity": ("luminosity", "astrometry", "bands"),
+    "mass_radius_model": ("mass",),
+    "mass": ("mass",),
+    "cooling_model": ("cooling",),
+    "cooling": ("cooling",),
+}
+
+
+def load_schema():
+    import yaml
+
+    with open(SCHEMA_PATH) as fh:
+        return yaml.safe_load(fh)
+
+
+def _format_error(err):
+    path = ".".join(str(p) for p in err.absolute_path) or "(top level)"
+    if err.validator == "additionalProperties":
+        allowed = sorted(err.schema.get("properties", {}))
+        extra = sorted(set(err.instance) - set(allowed))
+        return f"config key '{path + '.' if path != '(top level)' else ''}{extra[0]}' is not allowed; allowed keys " \
+               f"here: {', '.join(allowed)}"
+    if err.validator == "enum":
+        return f"config key '{path}': {err.instance!r} is not one of {', '.join(map(repr, err.validator_value))}"
+    return f"config key '{path}': {err.message}"
+
+
+def validate(config, schema=None):
+    """Validate ``config`` in place against the schema, filling in defaults.
+
+    Raises
+    ------
+    ConfigError
+        One line naming the offending key and, where it applies, the allowed keys or values.
+    """
+    import jsonschema
+
+    schema = schema or load_schema()
+    base = jsonschema.Draft202012Validator
+
+    def set_defaults(validator, properties, instance, schema):
+        if isinstance(instance, dict):
+            for name, sub in properties.items():
+                if "default" in sub and name not in instance:
+                    instance[name] = copy.deepcopy(sub["default"])
+        yield from base.VALIDATORS["properties"](validator, properties, instance, schema)
+
+    filling = jsonschema.validators.extend(base, {"properties": set_defaults})
+    errors = sorted(filling(schema).iter_errors(config), key=lambda e: (len(list(e.absolute_path)), str(e.message)))
+    if errors:
+        raise ConfigError(_format_error(errors[0]))
+    return config
+
+
+def load_config(path):
+    """Read a YAML configuration with ``yaml.safe_load`` and validate it."""
+    import yaml
+
+    try:
+        with open(path) as fh:
+            config = yaml.safe_load(fh) or {}
+    except FileNotFoundError:
+        raise ConfigError(f"{path}: configuration file not found") from None
+    except yaml.YAMLError as exc:
+        raise ConfigError(f"{path}: not valid YAML ({str(exc).splitlines()[0]})") from None
+    return validate(config)
+
+
+def stage_settings(config, stage):
+    """The part of the configuration that ``stage`` depends on (a deep copy)."""
+    return {k: copy.deepcopy(config.get(k)) for k in STAGE_SECTIONS[stage]}
+
+
+def check_results_dir(config):
+    """The results folder must be a relative path that stays below the working directory."""
+    from pathlib import PurePath
+
+    p = PurePath(config.get("results_dir", "results"))
+    if p.is_absolute() or ".." in p.parts or str(p) in ("", "."):
+        raise ConfigError(f"config key 'results_dir': {str(p)!r} must be a relative folder below the working "
+                          "directory (no '..', not absolute)")
+
+
+def check_config(config):
+    """Validate a configuration for the workflow; on a fault print one line and stop.
+
+    Used by the Snakefile, where a traceback would bury the message.
+    """
+    import sys
+
+    try:
+        validate(config)
+        check_results_dir(config)
+    except ConfigError as exc:
+        sys.stderr.write(f"cinderclock: configuration error: {exc}\n")
+        raise SystemExit(1) from None
+    return config

@@ -1,0 +1,215 @@
+"""Ingest: the user's catalogue to canonical columns, units and types, with row-level vetting.
+
+What happens to each kind of fault:
+
+* a configured column missing from the file, an unknown unit, a numeric column that is mostly
+  text, an empty file: one-line :class:`~cinderclock.errors.InputError`, the run stops;
+* a row with the wrong number of fields, an empty or repeated identifier, text in a numeric
+  field, a missing/NaN/infinite parallax or parallax error, a non-positive parallax error, or no
+  usable magnitude in any band: the row goes to the rejects table with a reason code;
+* a sentinel or implausible magnitude (or one without a valid uncertainty): that band is treated
+  as missing for the star and the ``band_missing`` flag is set;
+* a spectroscopic Teff or log g outside the plausible range: the value is ignored and the
+  ``spec_out_of_range`` flag is set (the star continues on photometry).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+from .. import columns as C
+from ..catalogue import read_catalogue
+from ..errors import ConfigError, InputError
+from ..reasons import Rejector, make_rejects, set_flag
+from ..tableio import Column
+from ..units import conversion_factor
+
+STAGE = "ingest"
+#: A numeric column where more than this fraction of the values is text is a mapping error, not bad rows.
+TEXT_COLUMN_FRACTION = 0.5
+#: Magnitudes outside this interval are treated as sentinels (common practice: catalogues use 99, -99, 99.99).
+MAG_PLAUSIBLE = (-5.0, 35.0)
+
+
+def wanted_columns(settings):
+    """User column names the ingest stage reads."""
+    cols = dict(settings["catalogue"]["columns"])
+    unknown = [k for k in cols if k not in C.INPUT_QUANTITIES]
+    if unknown:
+        raise ConfigError(f"catalogue.columns: unknown quantity {unknown[0]!r}; known: {', '.join(C.INPUT_QUANTITIES)}")
+    for q, spec in C.INPUT_QUANTITIES.items():
+        if spec.required and q not in cols:
+            raise ConfigError(f"catalogue.columns: the required quantity '{q}' is not mapped to a column")
+    names = list(cols.values())
+    for band in settings["bands"].values():
+        names += [band["mag"], band["error"]]
+    names += list(settings["catalogue"].get("keep_columns", []))
+    return names
+
+
+def _parse_numeric(raw, name, path, rows):
+    """Values as float, the mask of entries that were text, and a clear error if most are text."""
+    values = raw[name]
+    if values.dtype.kind in "fiub":
+        return np.array(values, dtype=float), np.zeros(len(values), dtype=bool)
+    text = values.astype(object)
+    parsed = np.array(pd.to_numeric(text, errors="coerce"), dtype=float)
+    blank = text.isna().to_numpy() | (text.astype(str).str.strip() == "").to_numpy()
+    bad = np.isnan(parsed) & ~blank & ~text.astype(str).str.strip().str.lower().isin(["nan", "null", "na"]).to_numpy()
+    if bad.any() and bad.mean() > TEXT_COLUMN_FRACTION:
+        i = int(np.argmax(bad))
+        raise InputError(f"expected numbers, found text such as {str(text.iloc[i])!r} in {bad.mean():.0%} of the rows "
+                         "(is the column mapping right?)", path, row=int(rows[i]), column=name)
+    return parsed, bad
+
+
+def ingest(raw, settings):
+    """Turn a :class:`~cinderclock.catalogue.RawCatalogue` into the canonical table.
+
+    Parameters
+    ----------
+    raw : RawCatalogue
+        Columns as read from the file.
+    settings : dict
+        ``{"catalogue": ..., "bands": ...}`` sections of the configuration.
+
+    Returns
+    -------
+    table : pandas.DataFrame
+        Canonical columns, one row per accepted input row, in input order.
+    rejects : pandas.DataFrame
+    specs : dict of str to Column
+    """
+    cat = settings["catalogue"]
+    path = raw.path
+    data, rows = raw.data, raw.rows
+    n = len(data)
+
+    id_col = cat["columns"]["star_id"]
+    ids = data[id_col]
+    if ids.dtype.kind in "iu":
+        id_values = ids.to_numpy(dtype=np.int64)
+        id_text = pd.Series(id_values).astype(str).to_numpy(dtype=object)
+        missing_id = np.zeros(n, dtype=bool)
+    else:
+        id_text = ids.astype(object).where(ids.notna(), "").astype(str).str.strip().to_numpy(dtype=object)
+        missing_id = id_text == ""
+        # integer identifiers (as most surveys use) stay integers; up to 18 digits fit int64 exactly
+        digits = pd.Series(id_text).str.fullmatch(r"[+-]?\d{1,18}").to_numpy(dtype=bool)
+        if n and (digits | missing_id).all():
+            id_values = np.where(missing_id, "-1", id_text).astype(np.int64)
+        else:
+            id_values = id_text
+
+    rj = Rejector(STAGE, id_text, rows)
+    reject = rj.reject
+    if raw.malformed:
+        bad_rows = np.array([r for r, _ in raw.malformed], dtype=np.int64)
+        texts = [f"{t[:120]}" for _, t in raw.malformed]
+        bad_ids = [t.split(",")[0][:40] for _, t in raw.malformed]
+        rj.add(make_rejects(bad_ids, bad_rows, STAGE, "malformed_row", texts))
+
+    reject(missing_id, "missing_id", f"column '{id_col}' is empty")
+
+    out = {}
+    specs = {C.ID: C.INPUT_QUANTITIES["star_id"].spec, C.ROW: C.BASE_COLUMNS[C.ROW]}
+    units_cfg = cat.get("units", {}) or {}
+
+    def numeric(name, quantity_key, canonical_unit):
+        values, text = _parse_numeric(data, name, path, rows)
+        if text.any():
+            shown = data[name].astype(str).to_numpy()
+            reject(text, "not_a_number", lambda i: [f"column '{name}': {v!r} is not a number" for v in shown[i]])
+        file_unit = raw.units.get(name)
+        unit = file_unit if file_unit not in (None, "") else units_cfg.get(quantity_key)
+        factor = conversion_factor(unit, canonical_unit, path, name)
+        return values * factor if factor != 1.0 else values
+
+    for key, user_name in cat["columns"].items():
+        if key == "star_id":
+            continue
+        q = C.INPUT_QUANTITIES[key]
+        out[q.column] = numeric(user_name, key, q.unit)
+        specs[q.column] = q.spec
+
+    bits = np.zeros(n, dtype=np.int64)
+    # required astrometry
+    for key in ("parallax", "parallax_error"):
+        col = C.INPUT_QUANTITIES[key].column
+        bad = ~np.isfinite(out[col])
+        reject(bad, "nonfinite_required", f"column '{cat['columns'][key]}' is missing, NaN or infinite")
+    reject(out["plx_err_mas"] <= 0, "bad_parallax_error", f"column '{cat['columns']['parallax_error']}' is not positive")
+
+    # spectroscopic values outside the plausible range are ignored, with a flag
+    for key in ("teff_spec", "logg_spec"):
+        if key in cat["columns"]:
+            q = C.INPUT_QUANTITIES[key]
+            v = out[q.column]
+            off = np.isfinite(v) & ((v < q.low) | (v > q.high))
+            bits = set_flag(bits, "spec_out_of_range", off)
+            v[off] = np.nan
+            err_key = key + "_error"
+            if err_key in cat["columns"]:
+                out[C.INPUT_QUANTITIES[err_key].column][off] = np.nan
+
+    # photometry
+    sentinels = np.asarray(cat.get("missing_values", []), dtype=float)
+    n_bands = np.zeros(n, dtype=int)
+    for band, b in settings["bands"].items():
+        mag = numeric(b["mag"], None, "mag")
+        err = numeric(b["error"], None, "mag")
+        unusable = (~np.isfinite(mag) | np.isin(mag, sentinels) | (mag < MAG_PLAUSIBLE[0]) | (mag > MAG_PLAUSIBLE[1])
+                    | ~np.isfinite(err) | (err <= 0) | np.isin(err, sentinels))
+        mag = np.where(unusable, np.nan, mag)
+        err = np.where(unusable, np.nan, err)
+        bits = set_flag(bits, "band_missing", unusable)
+        n_bands += ~unusable
+        out[C.mag_column(band)] = mag
+        out[C.mag_err_column(band)] = err
+        specs.update(C.band_specs(band, b["passband"], b["system"]))
+    reject(n_bands == 0, "no_photometry", "no usable magnitude in any configured band")
+
+    # duplicated identifiers: keep the first occurrence among the rows still alive
+    live_ids = pd.Series(id_text).where(rj.alive)
+    dup = live_ids.duplicated(keep="first").to_numpy() & rj.alive
+    reject(dup, "duplicate_id", lambda i: [f"identifier {v!r} appeared earlier" for v in id_text[i]])
+
+    for name in cat.get("keep_columns", []):
+        values = data[name]
+        if values.dtype.kind not in "fiub":
+            parsed = pd.to_numeric(values, errors="coerce")
+            values = parsed if parsed.notna().sum() >= values.notna().sum() else values.astype(str)
+        out[name] = np.asarray(values)
+        unit = raw.units.get(name, "")
+        specs[name] = Column(unit or "", f"Column '{name}' copied from the input catalogue", "")
+
+    table = pd.DataFrame({C.ID: id_values, C.ROW: rows, **out, C.FLAGS: bits})
+    specs[C.FLAGS] = C.BASE_COLUMNS[C.FLAGS]
+    table = table.loc[rj.alive].reset_index(drop=True)
+    return table, rj.rejects(), specs
+
+
+def load_and_ingest(settings):
+    """Read the configured catalogue and ingest it (see :func:`ingest`)."""
+    raw = read_catalogue(settings["catalogue"]["path"], wanted_columns(settings),
+                         settings["catalogue"].get("format", "auto"))
+    return ingest(raw, settings)
+
+
+def shard_labels(table, settings):
+    """Shard name of every row of the canonical table.
+
+    ``shards.method: rows`` cuts the catalogue into consecutive blocks of ``rows_per_shard`` input
+    rows (by input position, so an edit to one row changes one shard). Names are ``s0000``, ...
+    """
+    sh = settings.get("shards", {"method": "rows", "rows_per_shard": 250000})
+    if sh["method"] == "rows":
+        idx = np.asarray(table[C.ROW], dtype=np.int64) // int(sh["rows_per_shard"])
+        return np.char.add("s", np.char.zfill(idx.astype(str), 4))
+    raise ConfigError(f"shards.method: unknown method {sh['method']!r}")
+
+
+def shard_rejects(rejects, settings):
+    """Shard names for rejected rows, by the same rule as :func:`shard_labels`."""
+    return shard_labels(rejects.rename(columns={"input_row": C.ROW}), settings) if len(rejects) else np.array([], str)

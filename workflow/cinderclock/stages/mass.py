@@ -1,0 +1,65 @@
+"""Mass: mass and radius of each white dwarf from log g, or from the photometric radius.
+
+Route ``logg`` (spectroscopic log g given): invert log g(M) of the mass-radius table. Route
+``radius`` (no log g): invert R(M) at the photometric radius of the luminosity stage. Stars that
+fall off the table keep NaN mass and the ``mass_off_table`` flag; they stay in the results.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from .. import columns as C
+from ..reasons import set_flag
+from ..tableio import Column
+
+STAGE = "mass"
+
+COLUMNS = {
+    "mass_msun": Column("solMass", "White-dwarf mass", "phys.mass"),
+    "radius_rsun": Column("solRad", "Radius from the mass-radius relation at this mass", "phys.size.radius"),
+    "logg": Column("dex(cm / s2)", "Surface gravity log10(g / cm s^-2) of the model at this mass", "phys.gravity"),
+    "mass_route": Column("", "How the mass was found: 'logg' (spectroscopic) or 'radius' (photometric)", "meta.code"),
+}
+
+
+def mass(table, settings, mr):
+    """Add mass, radius, log g and the route.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        Output of the luminosity stage.
+    settings : dict
+        ``{"mass": ...}`` with ``low_mass_msun`` and ``high_mass_msun`` flag thresholds.
+    mr : cinderclock.stages.models.MassRadiusModel
+    """
+    cfg = settings["mass"]
+    out = table.copy()
+    n = len(out)
+    bits = out[C.FLAGS].to_numpy()
+    teff = out["teff_k"].to_numpy(dtype=float)
+    logg_in = out["logg_spec"].to_numpy(dtype=float) if "logg_spec" in out else np.full(n, np.nan)
+    by_logg = np.isfinite(logg_in)
+
+    m = np.full(n, np.nan)
+    r = np.full(n, np.nan)
+    g = np.full(n, np.nan)
+    m[by_logg], r[by_logg] = mr.mass_from_logg(logg_in[by_logg], teff[by_logg])
+    g[by_logg] = logg_in[by_logg]
+    m[~by_logg], g[~by_logg] = mr.mass_from_radius(out["radius_phot_rsun"].to_numpy(dtype=float)[~by_logg],
+                                                   teff[~by_logg])
+    r[~by_logg] = out["radius_phot_rsun"].to_numpy(dtype=float)[~by_logg]
+    r[~np.isfinite(m)] = np.nan
+    g[~np.isfinite(m)] = np.nan
+
+    bits = set_flag(bits, "mass_from_radius", ~by_logg)
+    bits = set_flag(bits, "mass_off_table", ~np.isfinite(m))
+    bits = set_flag(bits, "low_mass", m < cfg["low_mass_msun"])
+    bits = set_flag(bits, "high_mass", m > cfg["high_mass_msun"])
+    out["mass_msun"] = m
+    out["radius_rsun"] = r
+    out["logg"] = g
+    out["mass_route"] = np.where(by_logg, "logg", "radius").astype(object)
+    out[C.FLAGS] = bits
+    return out

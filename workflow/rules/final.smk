@@ -1,0 +1,23 @@
+# Final: merge the shards into one per-star table and one rejects table, with stage counts.
+
+
+rule final:
+    input:
+        manifest=f"{R}/ingest/manifest.json",
+        tables=per_shard("{R}/cooling/{shard}.parquet"),
+        rejects=per_shard(
+            "{R}/ingest/shards/{shard}.rejects.parquet",
+            "{R}/select/{shard}.rejects.parquet",
+            "{R}/luminosity/{shard}.rejects.parquet",
+        ),
+    output:
+        table=f"{R}/final/white_dwarfs.parquet",
+        rejects=f"{R}/final/rejects.parquet",
+        counts=f"{R}/final/stage_counts.json",
+    log:
+        f"{R}/logs/final/white_dwarfs.log",
+    params:
+        settings={},
+    threads: 1
+    script:
+        "../scripts/final.py"

@@ -1,0 +1,17 @@
+# Ingest: read the catalogue, map and convert columns, vet rows, cut into shards.
+# Shards are rewritten only when their content changes, so later stages rerun only for them.
+
+
+checkpoint ingest:
+    input:
+        catalogue=config["catalogue"]["path"],
+    output:
+        manifest=f"{R}/ingest/manifest.json",
+    log:
+        f"{R}/logs/ingest/manifest.log",
+    params:
+        settings=settings("ingest"),
+        shard_dir=f"{R}/ingest/shards",
+    threads: 1
+    script:
+        "../scripts/ingest.py"

@@ -1,0 +1,37 @@
+# Model tables, built once per configuration of the stage that uses them.
+
+
+rule photometry_model:
+    output:
+        f"{R}/models/photometry.parquet",
+    log:
+        f"{R}/logs/models/photometry.log",
+    params:
+        settings=settings("photometry_model"),
+    threads: 1
+    script:
+        "../scripts/model_photometry.py"
+
+
+rule mass_radius_model:
+    output:
+        f"{R}/models/mass_radius.parquet",
+    log:
+        f"{R}/logs/models/mass_radius.log",
+    params:
+        settings=settings("mass_radius_model"),
+    threads: 1
+    script:
+        "../scripts/model_mass_radius.py"
+
+
+rule cooling_model:
+    output:
+        f"{R}/models/cooling.parquet",
+    log:
+        f"{R}/logs/models/cooling.log",
+    params:
+        settings=settings("cooling_model"),
+    threads: 1
+    script:
+        "../scripts/model_cooling.py"

@@ -1,0 +1,16 @@
+# Select: white-dwarf candidates by structured cuts, per shard.
+
+
+rule select:
+    input:
+        table=ingest_shard,
+    output:
+        table=f"{R}/select/{{shard}}.parquet",
+        rejects=f"{R}/select/{{shard}}.rejects.parquet",
+    log:
+        f"{R}/logs/select/{{shard}}.log",
+    params:
+        settings=settings("select"),
+    threads: 1
+    script:
+        "../scripts/select.py"
