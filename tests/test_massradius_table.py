@@ -189,6 +189,17 @@ def test_solve_prefers_logg_then_photometric_radius(grid):
     assert out["inside"].tolist() == [True, True, False]
 
 
+def test_table_refuses_grids_outside_model_ranges():
+    """Valid ranges are data and checked: no table beyond the Newtonian T = 0 model's mass range
+    or the envelope model's Teff range."""
+    from cinderclock.errors import ModelRangeError
+
+    with pytest.raises(ModelRangeError):
+        build_mass_radius_table("CO", "thick", True, np.array([0.6, 1.40]), np.array([5000.0, 9000.0]))
+    with pytest.raises(ModelRangeError):
+        build_mass_radius_table("CO", "thick", True, np.array([0.6, 0.7]), np.array([5000.0, 300000.0]))
+
+
 def test_mass_flags():
     """Thresholds 0.45 and 1.05 Msun (common practice) applied to a shard."""
     assert flags.LOW_MASS_MSUN == 0.45 and flags.HIGH_MASS_MSUN == 1.05

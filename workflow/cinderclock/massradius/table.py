@@ -89,6 +89,12 @@ def build_mass_radius_table(core="CO", hydrogen_layer="thick", coulomb=True, mas
     max_envelope_mass_fraction : float
         Rows whose envelope holds more than this fraction of the mass are set to NaN.
 
+    Raises
+    ------
+    cinderclock.errors.ModelRangeError
+        If a grid reaches outside the valid range of a model used (mass 0.1-1.35 Msun,
+        Teff 3000-150000 K; see the ``ranges`` of the PublishedRelation constants).
+
     Returns
     -------
     pandas.DataFrame
@@ -110,6 +116,10 @@ def build_mass_radius_table(core="CO", hydrogen_layer="thick", coulomb=True, mas
     for name, arr in (("mass_grid", masses), ("teff_grid", teffs)):
         if arr.ndim != 1 or arr.size < 2 or np.any(np.diff(arr) <= 0) or not np.all(np.isfinite(arr)):
             raise ValueError(f"{name} must be a strictly increasing 1-d array of at least two finite values")
+    # never tabulate outside the stated ranges of the models used (raises ModelRangeError)
+    CHANDRASEKHAR_1939.check(strict=True, mass=masses)
+    MESTEL_KRAMERS_ENVELOPE.check(strict=True, mass=masses)
+    MESTEL_KRAMERS_ENVELOPE.check(strict=True, teff=teffs)
     ion_charge = comp.coulomb_charge if coulomb else None
     radius0 = _zero_t_radius_function(comp.mu_e, ion_charge, coulomb)(masses)
     if np.any(~np.isfinite(radius0)):
