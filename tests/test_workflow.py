@@ -84,7 +84,7 @@ def test_outputs_describe_themselves(run_dir):
     assert prov["catalogue_sha256"] == file_checksum(run_dir / "catalogue.csv")
     assert {"ingest", "select", "luminosity", "mass", "cooling"} <= set(prov["stages"])
     refs = json.dumps(prov["stages"]["cooling_model"]["models"])
-    assert "Mestel" in refs and "Nauenberg" in json.dumps(prov["stages"]["mass_radius_model"]["models"])
+    assert "Mestel" in refs and "Chandrasekhar" in json.dumps(prov["stages"]["mass_radius_model"]["models"])
 
 
 def test_second_run_has_nothing_to_do(run_dir):

@@ -46,7 +46,7 @@ class ModelSet:
     """The model tables of one configuration, ready for lookups."""
 
     photometry: M.PhotometryModel
-    mass_radius: M.MassRadiusModel
+    mass_radius: object
     cooling: M.CoolingModel
     references: dict
 
@@ -55,7 +55,7 @@ class ModelSet:
         p_tab, _, p_ref = M.build_photometry_table(stage_settings(config, "photometry_model"))
         m_tab, _, m_ref = M.build_mass_radius_table(stage_settings(config, "mass_radius_model"))
         c_tab, _, c_ref = M.build_cooling_table(stage_settings(config, "cooling_model"))
-        return cls(M.PhotometryModel(p_tab), M.MassRadiusModel(m_tab), M.CoolingModel(c_tab),
+        return cls(M.PhotometryModel(p_tab), M.load_mass_radius(m_tab), M.CoolingModel(c_tab),
                    {"photometry": p_ref, "mass_radius": m_ref, "cooling": c_ref})
 
 

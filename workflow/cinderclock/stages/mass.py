@@ -17,8 +17,10 @@ STAGE = "mass"
 
 COLUMNS = {
     "mass_msun": Column("solMass", "White-dwarf mass", "phys.mass"),
-    "radius_rsun": Column("solRad", "Radius from the mass-radius relation at this mass", "phys.size.radius"),
-    "logg": Column("dex(cm / s2)", "Surface gravity log10(g / cm s^-2) of the model at this mass", "phys.gravity"),
+    "radius_rsun": Column("solRad", "Radius: sqrt(G M / g) on the log g route, the photometric radius on the "
+                                    "radius route", "phys.size.radius"),
+    "logg": Column("dex(cm / s2)", "Surface gravity log10(g / cm s^-2): spectroscopic on the log g route, "
+                                   "G M / R^2 on the radius route", "phys.gravity"),
     "mass_route": Column("", "How the mass was found: 'logg' (spectroscopic) or 'radius' (photometric)", "meta.code"),
 }
 
@@ -32,7 +34,7 @@ def mass(table, settings, mr):
         Output of the luminosity stage.
     settings : dict
         ``{"mass": ...}`` with ``low_mass_msun`` and ``high_mass_msun`` flag thresholds.
-    mr : cinderclock.stages.models.MassRadiusModel
+    mr : cinderclock.massradius.grid.MassRadiusGrid
     """
     cfg = settings["mass"]
     out = table.copy()
@@ -45,11 +47,11 @@ def mass(table, settings, mr):
     m = np.full(n, np.nan)
     r = np.full(n, np.nan)
     g = np.full(n, np.nan)
-    m[by_logg], r[by_logg] = mr.mass_from_logg(logg_in[by_logg], teff[by_logg])
+    m[by_logg], r[by_logg], _ = mr.mass_from_logg(logg_in[by_logg], teff[by_logg])
     g[by_logg] = logg_in[by_logg]
-    m[~by_logg], g[~by_logg] = mr.mass_from_radius(out["radius_phot_rsun"].to_numpy(dtype=float)[~by_logg],
-                                                   teff[~by_logg])
-    r[~by_logg] = out["radius_phot_rsun"].to_numpy(dtype=float)[~by_logg]
+    r_phot = out["radius_phot_rsun"].to_numpy(dtype=float)
+    m[~by_logg], g[~by_logg], _ = mr.mass_from_radius(r_phot[~by_logg], teff[~by_logg])
+    r[~by_logg] = r_phot[~by_logg]
     r[~np.isfinite(m)] = np.nan
     g[~np.isfinite(m)] = np.nan
 

@@ -89,39 +89,43 @@ class PhotometryModel:
 
 # ---------------------------------------------------------------- mass-radius
 def build_mass_radius_table(settings):
-    """Mass-radius relation tabulated on a mass grid."""
-    mass = settings["mass"]
-    if mass["relation"] != "nauenberg1972":
-        raise ConfigError(f"mass.relation: unknown relation {mass['relation']!r}")
-    from ..massradius.nauenberg import NAUENBERG_1972, NauenbergInverse
+    """Mass-radius table on a (mass, Teff) grid, long format.
 
-    inv = NauenbergInverse(mu_e=mass["mu_e"])
-    table = pd.DataFrame({"mass_msun": inv.mass, "radius_rsun": inv.radius, "logg": inv.logg})
-    specs = {"mass_msun": Column("solMass", "White-dwarf mass", "phys.mass"),
-             "radius_rsun": Column("solRad", "Radius", "phys.size.radius"),
-             "logg": Column("dex(cm / s2)", "Surface gravity log10(g / cm s^-2)", "phys.gravity")}
-    return table, specs, [NAUENBERG_1972.as_model() | {"mu_e": mass["mu_e"]}]
+    ``relation: structure`` integrates Chandrasekhar's equation for the configured core (with the
+    Salpeter 1961 Coulomb correction if asked) and adds the finite-temperature envelope for the
+    hydrogen-layer choice; ``relation: nauenberg1972`` tabulates the closed-form zero-temperature
+    fit (the same radius at every Teff).
+    """
+    from ..massradius.table import TABLE_COLUMNS
+
+    cfg = settings["mass"]
+    if cfg["relation"] == "structure":
+        from ..massradius.table import build_mass_radius_table as build
+
+        df = build(core=cfg["core"], hydrogen_layer=cfg["hydrogen_layer"], coulomb=cfg["coulomb"])
+        models = list(df.attrs.get("models", []))
+        models.append({"name": "mass_radius_settings", "reference": "", **df.attrs.get("settings", {})})
+    elif cfg["relation"] == "nauenberg1972":
+        from ..massradius.nauenberg import NAUENBERG_1972, NauenbergInverse, logg_cgs
+
+        inv = NauenbergInverse(mu_e=cfg["mu_e"])
+        teff = np.geomspace(3000.0, 150000.0, 5)
+        m2, t2 = np.meshgrid(inv.mass, teff, indexing="ij")
+        r2 = np.broadcast_to(inv.radius[:, None], m2.shape)
+        df = pd.DataFrame({"mass_msun": m2.ravel(), "teff_k": t2.ravel(), "radius_rsun": r2.ravel(),
+                           "logg_cgs": logg_cgs(m2, r2).ravel()})
+        models = [NAUENBERG_1972.as_model() | {"mu_e": cfg["mu_e"], "caution": NAUENBERG_1972.note}]
+    else:
+        raise ConfigError(f"mass.relation: unknown relation {cfg['relation']!r}")
+    df = pd.DataFrame({c: df[c].to_numpy() for c in df.columns})      # plain frame, attrs moved to provenance
+    return df, {c: TABLE_COLUMNS[c] for c in df.columns}, models
 
 
-class MassRadiusModel:
-    """Vectorised inversion of a tabulated mass-radius relation."""
+def load_mass_radius(table):
+    """Vectorised mass-radius lookups (:class:`cinderclock.massradius.grid.MassRadiusGrid`)."""
+    from ..massradius.grid import MassRadiusGrid
 
-    def __init__(self, table):
-        order = np.argsort(table["mass_msun"].to_numpy())
-        self.mass = table["mass_msun"].to_numpy(dtype=float)[order]
-        self.radius = table["radius_rsun"].to_numpy(dtype=float)[order]
-        self.logg = table["logg"].to_numpy(dtype=float)[order]
-
-    def mass_from_logg(self, logg, teff=None):
-        """(mass, radius) from log g; NaN outside the table."""
-        m = np.interp(np.asarray(logg, dtype=float), self.logg, self.mass, left=np.nan, right=np.nan)
-        return m, np.interp(m, self.mass, self.radius, left=np.nan, right=np.nan)
-
-    def mass_from_radius(self, radius_rsun, teff=None):
-        """(mass, log g) from radius; NaN outside the table."""
-        m = np.interp(np.asarray(radius_rsun, dtype=float), self.radius[::-1], self.mass[::-1],
-                      left=np.nan, right=np.nan)
-        return m, np.interp(m, self.mass, self.logg, left=np.nan, right=np.nan)
+    return MassRadiusGrid.from_frame(table)
 
 
 # ---------------------------------------------------------------- cooling
