@@ -111,3 +111,10 @@ def test_edsd_high_snr_approaches_inverse_parallax():
     # As sigma/plx -> 0 the likelihood dominates and the mode tends to 1/plx (Bailer-Jones 2015).
     r = edsd_mode_kpc(np.array([10.0]), np.array([0.01]), L_KPC)[0]
     assert r == pytest.approx(0.1, rel=1e-5)
+
+
+def test_length_scale_outside_range_is_a_config_error():
+    from cinderclock.errors import ConfigError
+
+    with pytest.raises(ConfigError, match="length scale"):
+        distances([1.0], [0.5], length_scale_pc=0.0)

@@ -36,6 +36,16 @@ from __future__ import annotations
 
 import numpy as np
 
+from .relation import PublishedRelation, ValidRange
+
+#: The EDSD prior as a published method; its only parameter is the length scale L (pc).
+EDSD_BAILER_JONES_2015 = PublishedRelation(
+    key="edsd",
+    reference="Bailer-Jones, C. A. L. 2015, PASP 127, 994 (exponentially decreasing space density prior)",
+    ranges=(ValidRange("length_scale_pc", 1.0, 1e5, "pc"),),
+    note="prior-dominated at low parallax S/N; choose L for the population (white dwarfs: a few hundred pc)",
+)
+
 #: Method codes written in the ``method`` output.
 METHOD_INVERSE = "inverse_parallax"
 METHOD_EDSD = "edsd_mode"
@@ -83,8 +93,10 @@ def distances(parallax_mas, parallax_error_mas, zero_point_mas=0.0,
     plx, err = np.broadcast_arrays(plx, err)
     plx = np.atleast_1d(plx).astype(float)
     err = np.atleast_1d(err).astype(float)
-    if not (length_scale_pc > 0):
-        raise ValueError("length_scale_pc must be positive")
+    if not EDSD_BAILER_JONES_2015.inside(length_scale_pc=length_scale_pc):
+        from .errors import ConfigError
+
+        raise ConfigError(f"EDSD length scale must lie in [1, 1e5] pc, got {length_scale_pc}")
 
     n = plx.size
     d = np.full(n, np.nan)

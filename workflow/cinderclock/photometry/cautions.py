@@ -33,3 +33,29 @@ EDSD_CAUTION = (
     "and are uncertain by more than the 16-84 percent bounds suggest when the posterior is "
     "bimodal."
 )
+
+
+def output_cautions(grid_metadata, any_edsd_distance=False):
+    """Cautions to write into the metadata of a luminosity table.
+
+    Parameters
+    ----------
+    grid_metadata : dict
+        ``PhotometryGrid.metadata`` of the grid used in the fit.
+    any_edsd_distance : bool
+        True if any distance came from the EDSD prior.
+
+    Returns
+    -------
+    list of str
+    """
+    out = []
+    if grid_metadata.get("spectra") == "blackbody":
+        out.append(BLACKBODY_CAUTION)
+    elif grid_metadata.get("caution"):
+        out.append(grid_metadata["caution"])
+    if any_edsd_distance:
+        out.append(EDSD_CAUTION)
+    out.append("Errors of Teff, radius and luminosity are statistical (photometric errors, error floor and "
+               "distance bounds), not scaled by the reduced chi-square.")
+    return out
