@@ -32,7 +32,7 @@ def _reference_mode_and_percentiles(plx, sig, lk):
     def cdf(r):
         return integrate.quad(dens, 0, r, limit=1000, points=[p for p in pts if p < r])[0] / z
 
-    qs = [optimize.brentq(lambda r: cdf(r) - q, 1e-5, top, xtol=1e-10) for q in (0.16, 0.84)]
+    qs = [optimize.brentq(lambda r, q=q: cdf(r) - q, 1e-5, top, xtol=1e-10) for q in (0.16, 0.84)]
     return mode, qs
 
 

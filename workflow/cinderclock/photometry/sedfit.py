@@ -141,8 +141,9 @@ def fit_sed(mags, errs, grid, ebv=0.0, distance_pc=None, *, distance_lo_pc=None,
         ``teff_k``, ``teff_err_k``, ``log_solid_angle`` (log10 (R/d)^2) and its ``_err``,
         ``radius_rsun``, ``radius_err_rsun``, ``log_lum`` (log10 L/Lsun) and ``log_lum_err``,
         ``mbol`` and ``mbol_err`` (absolute bolometric magnitude, IAU 2015 B2), ``chi2``,
-        ``n_bands`` (bands used), ``teff_at_grid_edge`` (best coarse node at an end of the grid:
-        Teff is a bound, not a fit) and ``method`` (``"sed"``, ``"colour"``, ``"fixed_teff"`` or
+        ``n_bands`` (bands used; chi2 has n_bands - 2 degrees of freedom, n_bands - 1 at fixed
+        Teff), ``teff_at_grid_edge`` (fitted Teff within ``coarse_step_dex`` of an end of the
+        grid: Teff may be a bound, not a fit) and ``method`` (``"sed"``, ``"colour"``, ``"fixed_teff"`` or
         ``"none"``).
     """
     m = np.atleast_2d(np.asarray(mags, dtype=float))

@@ -4,9 +4,10 @@ For a photon-counting detector the AB magnitude of a spectrum f_lambda through a
 
     m_AB = -2.5 log10( int f_lambda S lambda dlambda / int f_nu,AB (c / lambda^2) S lambda dlambda ),
 
-with f_nu,AB = 3631 Jy (Oke & Gunn 1983, ApJ 266, 713). On each band's own wavelength grid the
-integral is a dot product with trapezoid weights w = S lambda dlambda, computed once per band, so
-the magnitudes of many spectra are one matrix product.
+with f_nu,AB = 3631 Jy (Oke & Gunn 1983, ApJ 266, 713). On each band's integration grid (its
+tabulated wavelengths, subdivided to steps of at most 0.2 nm) the integral is a dot product with
+trapezoid weights w = S lambda dlambda, computed once per band, so the magnitudes of many spectra
+are one matrix product.
 """
 
 from __future__ import annotations

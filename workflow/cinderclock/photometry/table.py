@@ -121,8 +121,6 @@ def build_photometry_table(bands, teff_grid, ebv_grid=(0.0,), law="G23", r_v=3.1
         IAU 2015 B2, unreddened). ``df.attrs["photometry"]`` holds the metadata, including the
         blackbody caution.
     """
-    import pandas as pd
-
     if spectra not in SPECTRA:
         raise ConfigError(f"model spectra '{spectra}' are not built in (known: {', '.join(SPECTRA)}); "
                           "supply a synthetic-photometry table instead")
@@ -136,7 +134,7 @@ def build_photometry_table(bands, teff_grid, ebv_grid=(0.0,), law="G23", r_v=3.1
     ext = ExtinctionLaw(law, float(r_v)) if (law is not None and np.any(ebv > 0)) else None
 
     mags = np.empty((1, ebv.size, teff.size, len(spec)))
-    for j, (key, name, system) in enumerate(spec):
+    for j, (_key, name, system) in enumerate(spec):
         m = band_integrals(name, teff, ebv, ext).T          # (n_ebv, n_teff)
         if system == "vega":
             m = m + vega_minus_ab(name)
