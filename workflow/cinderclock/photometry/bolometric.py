@@ -6,10 +6,10 @@ f0 = L0 / (4 pi (10 pc)^2) = 2.518021e-8 W m^-2. A star of radius R at distance 
 F = sigma T^4 (R/d)^2 and, if it radiates as a blackbody, f_lambda = pi B_lambda(T) (R/d)^2; the
 ratio (R/d)^2 cancels in BC_X = m_bol - m_X.
 
-Caution: white dwarfs are not blackbodies. Hydrogen-atmosphere (DA) stars have a Balmer jump
-and strong Balmer lines, so blackbody colours and corrections are biased, most in blue bands and
-for 8,000-20,000 K stars (of order 0.1 mag in Gaia BP-RP, larger in u or g). The bias carries
-into Teff estimated from a colour and into the luminosity.
+Caution: white dwarfs are not blackbodies; see :data:`cinderclock.photometry.cautions.BLACKBODY_CAUTION`.
+Hydrogen-atmosphere (DA) stars have a Balmer jump and strong Balmer lines, so blackbody colours and
+corrections are biased, most in blue bands. The bias carries into Teff estimated from colours and
+into the luminosity.
 """
 
 from __future__ import annotations
@@ -27,6 +27,12 @@ F0_W_M2 = L_BOL0_W / (4 * np.pi * (10 * PC_M) ** 2)
 def bolometric_magnitude_from_flux(flux_w_m2):
     """Apparent bolometric magnitude of an irradiance (W m^-2), IAU 2015 B2."""
     return -2.5 * np.log10(np.asarray(flux_w_m2, dtype=float) / F0_W_M2)
+
+
+def unit_solid_angle_mbol(teff_k):
+    """Apparent bolometric magnitude of a star of Teff (K) with (R/d)^2 = 1: F = sigma T^4 (IAU 2015 B2)."""
+    t = np.asarray(teff_k, dtype=float)
+    return bolometric_magnitude_from_flux(SIGMA_SB_SI * t**4)
 
 
 def absolute_bolometric_magnitude(log_lum_lsun):
