@@ -28,12 +28,12 @@ def test_bad_choice_lists_the_allowed_values(config):
 
 def test_defaults_are_filled(config):
     cfg = {"catalogue": {"path": "x.csv", "columns": {"star_id": "a", "parallax": "b", "parallax_error": "c"}},
-           "bands": {"G": {"passband": "gaiadr3-G", "system": "vega", "mag": "g", "error": "ge"}},
-           "luminosity": {"bolometric_band": "G", "teff_colour": ["G", "G"]}}
+           "bands": {"G": {"passband": "gaiadr3-G", "system": "vega", "mag": "g", "error": "ge"}}}
     validate(cfg)
     assert cfg["results_dir"] == "results"
     assert cfg["select"]["min_parallax_over_error"] == 5.0
     assert cfg["cooling"]["model"] == "mestel"
+    assert cfg["luminosity"]["distance"]["min_parallax_over_error_inverse"] == 10.0
 
 
 @pytest.mark.parametrize("path", ["/tmp/out", "../elsewhere", "results/../../x", "."])

@@ -45,17 +45,19 @@ class ChainResult:
 class ModelSet:
     """The model tables of one configuration, ready for lookups."""
 
-    photometry: M.PhotometryModel
+    photometry: object
     mass_radius: object
     cooling: M.CoolingModel
     references: dict
 
     @classmethod
     def build(cls, config):
-        p_tab, _, p_ref = M.build_photometry_table(stage_settings(config, "photometry_model"))
+        lum = config["luminosity"]
+        user = lum["user_table"]["path"] if lum["spectra"] == "user_table" else None
+        p_tab, _, p_ref = M.build_photometry_table(stage_settings(config, "photometry_model"), user_table_path=user)
         m_tab, _, m_ref = M.build_mass_radius_table(stage_settings(config, "mass_radius_model"))
         c_tab, _, c_ref = M.build_cooling_table(stage_settings(config, "cooling_model"))
-        return cls(M.PhotometryModel(p_tab), M.load_mass_radius(m_tab), M.CoolingModel(c_tab),
+        return cls(M.load_photometry(p_tab), M.load_mass_radius(m_tab), M.CoolingModel(c_tab),
                    {"photometry": p_ref, "mass_radius": m_ref, "cooling": c_ref})
 
 

@@ -31,6 +31,7 @@ REASONS = {
     # luminosity
     "no_temperature": "No spectroscopic Teff and not enough bands to estimate one",
     "temperature_out_of_range": "The estimated Teff lies outside the model photometry table",
+    "extinction_out_of_range": "E(B-V) exceeds the largest value of the model photometry table",
 }
 
 #: flag name -> (bit, description)
@@ -50,6 +51,7 @@ FLAG_BITS = {
     "ifmr_out_of_range": (12, "White-dwarf mass outside the calibrated range of the initial-final mass relation"),
     "progenitor_uncertain": (13, "Progenitor lifetime too uncertain for a reliable total age"),
     "mc_off_table": (14, "More than the configured fraction of Monte Carlo draws fell off the model tables"),
+    "teff_at_grid_edge": (15, "Photometric Teff at an end of the model grid: a bound, not a fit"),
 }
 
 REJECT_COLUMNS = {

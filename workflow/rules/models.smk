@@ -1,7 +1,15 @@
 # Model tables, built once per configuration of the stage that uses them.
 
 
+def user_photometry_table(wildcards):
+    """The user's synthetic-photometry table, when the configuration asks for one."""
+    lum = config["luminosity"]
+    return {"user_table": lum["user_table"]["path"]} if lum["spectra"] == "user_table" else {}
+
+
 rule photometry_model:
+    input:
+        unpack(user_photometry_table),
     output:
         f"{R}/models/photometry.parquet",
     log:

@@ -3,15 +3,17 @@ from cinderclock.runner import run, stage_provenance, write_rejects, write_stage
 
 
 def body(smk):
-    from cinderclock.stages.luminosity import STAGE, column_specs, luminosity
-    from cinderclock.stages.models import PhotometryModel
+    from cinderclock.stages.luminosity import STAGE, column_specs, luminosity, model_cautions
+    from cinderclock.stages.models import load_photometry
     from cinderclock.tableio import read_table
 
     table, specs, meta = read_table(smk.input.table)
     model_table, _, model_meta = read_table(smk.input.photometry)
     settings = smk.params.settings
-    out, rejects = luminosity(table, settings, PhotometryModel(model_table))
-    prov = stage_provenance(STAGE, settings, [smk.input.table, smk.input.photometry],
+    grid = load_photometry(model_table)
+    out, rejects = luminosity(table, settings, grid)
+    models = [{"name": "cautions", "reference": "", "cautions": model_cautions(grid.metadata, out)}]
+    prov = stage_provenance(STAGE, settings, [smk.input.table, smk.input.photometry], models=models,
                             upstream=[meta["provenance"], model_meta["provenance"]])
     write_stage(out, smk.output.table, specs | column_specs(settings["bands"]), prov, STAGE)
     write_rejects(rejects, smk.output.rejects, prov, STAGE)

@@ -22,11 +22,13 @@ COLUMNS = {
     "logg": Column("dex(cm / s2)", "Surface gravity log10(g / cm s^-2): spectroscopic on the log g route, "
                                    "G M / R^2 on the radius route", "phys.gravity"),
     "mass_route": Column("", "How the mass was found: 'logg' (spectroscopic) or 'radius' (photometric)", "meta.code"),
+    "radius_ratio": Column("", "Photometric radius over the mass-radius radius at the spectroscopic log g "
+                               "(about sqrt(2) for an unresolved equal pair)", "arith.ratio"),
 }
 
 
 def mass(table, settings, mr):
-    """Add mass, radius, log g and the route.
+    """Add mass, radius, log g, the route and the over-luminosity check.
 
     Parameters
     ----------
@@ -54,6 +56,25 @@ def mass(table, settings, mr):
     r[~by_logg] = r_phot[~by_logg]
     r[~np.isfinite(m)] = np.nan
     g[~np.isfinite(m)] = np.nan
+
+    # over-luminosity: on the log g route the photometric radius should match the model radius
+    from ..photometry.consistency import overluminosity
+
+    ol = cfg["overluminous"]
+    logg_err = out["logg_spec_err"].to_numpy(dtype=float) if "logg_spec_err" in out else np.full(n, np.nan)
+    r_exp_err = np.full(n, np.nan)
+    if by_logg.any():
+        # radius error from the log g error, by finite differences through the table
+        _, r_lo, _ = mr.mass_from_logg(logg_in[by_logg] - logg_err[by_logg], teff[by_logg])
+        _, r_hi, _ = mr.mass_from_logg(logg_in[by_logg] + logg_err[by_logg], teff[by_logg])
+        r_exp_err[by_logg] = 0.5 * np.abs(r_lo - r_hi)
+    r_phot_err = out["radius_phot_err_rsun"].to_numpy(dtype=float) if "radius_phot_err_rsun" in out \
+        else np.full(n, np.nan)
+    check = overluminosity(np.where(by_logg, r_phot, np.nan), r_phot_err, np.where(by_logg, r, np.nan),
+                           np.where(np.isfinite(r_exp_err), r_exp_err, 0.0),
+                           min_ratio=ol["min_radius_ratio"], n_sigma=ol["n_sigma"])
+    bits = set_flag(bits, "overluminous", check["overluminous"])
+    out["radius_ratio"] = check["radius_ratio"]
 
     bits = set_flag(bits, "mass_from_radius", ~by_logg)
     bits = set_flag(bits, "mass_off_table", ~np.isfinite(m))

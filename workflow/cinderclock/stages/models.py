@@ -16,75 +16,82 @@ from ..tableio import Column
 
 # ---------------------------------------------------------------- photometry
 def band_list(bands):
-    """``bands`` section as a list of (key, passband, system)."""
-    return [(k, b["passband"], b["system"]) for k, b in bands.items()]
+    """``bands`` section as a list of ``{key, passband, system}``."""
+    return [{"key": k, "passband": b["passband"], "system": b["system"]} for k, b in bands.items()]
 
 
-def build_photometry_table(settings):
-    """Synthetic magnitudes of the model spectra for unit solid angle on a Teff grid.
+def _ebv_grid(ext):
+    """E(B-V) nodes the photometry table needs for the configured extinction."""
+    from ..photometry.table import default_ebv_grid_mag
 
-    Columns: ``teff_k``, ``mbol_unit`` (apparent bolometric magnitude of a star with (R/d)^2 = 1)
-    and ``mag_unit_<band>`` per band.
+    if ext["mode"] == "none":
+        return np.array([0.0])
+    top = max(float(ext["max_ebv_mag"]), float(ext.get("ebv_mag", 0.0)) if ext["mode"] == "constant" else 0.0)
+    return default_ebv_grid_mag(top, float(ext["ebv_step_mag"]))
+
+
+def build_photometry_table(settings, user_table_path=None):
+    """Synthetic magnitudes for unit solid angle on a (Teff, E(B-V)[, log g]) grid.
+
+    Blackbody spectra by default (extinction applied to the spectrum before band integration);
+    with ``luminosity.spectra: user_table`` the user's synthetic-photometry table of one
+    atmosphere class, with band extinction from reddened blackbodies.
+
+    Returns ``(table, specs, models)``; the table's columns are ``teff_k``, ``ebv_mag``,
+    optionally ``logg_cgs``, ``mag_<band>`` (magnitude for (R/d)^2 = 1) and ``mbol_unit``.
     """
-    from ..photometry.bolometric import blackbody_magnitudes, bolometric_magnitude_from_flux
-    from ..constants import SIGMA_SB_SI
+    from ..photometry.cautions import BLACKBODY_CAUTION, USER_GRID_EXTINCTION_CAUTION
+    from ..photometry.passbands import vega_zero_points
+    from ..photometry.table import build_photometry_grid, default_teff_grid_k
 
     lum = settings["luminosity"]
-    grid = lum["teff_grid"]
-    if lum.get("spectra", "blackbody") != "blackbody":
-        raise ConfigError(f"luminosity.spectra: unknown model spectra {lum['spectra']!r}")
-    teff = np.geomspace(grid["min_k"], grid["max_k"], int(grid["n"]))
+    ext = lum["extinction"]
+    grid_cfg = lum["teff_grid"]
     bands = band_list(settings["bands"])
-    mags = blackbody_magnitudes(teff, [b[1] for b in bands], [b[2] for b in bands])
-    table = pd.DataFrame({"teff_k": teff, "mbol_unit": bolometric_magnitude_from_flux(SIGMA_SB_SI * teff**4)})
-    specs = {"teff_k": Column("K", "Effective temperature of the model spectrum", "phys.temperature.effective"),
-             "mbol_unit": Column("mag", "Apparent bolometric magnitude (IAU 2015 B2) for a solid angle (R/d)^2 = 1",
+    law = ext["law"] if ext["mode"] != "none" else None
+    teff = default_teff_grid_k(grid_cfg["min_k"], grid_cfg["max_k"], grid_cfg["step_dex"])
+    bb = build_photometry_grid(bands, teff, _ebv_grid(ext), law=law, r_v=ext["r_v"])
+    models = []
+    if lum["spectra"] == "blackbody":
+        grid = bb
+        models.append({"name": "blackbody", "reference": "Planck law through speclite passbands; AB: Oke & Gunn "
+                       "1983, ApJ 266, 713; bolometric scale: IAU 2015 Resolution B2", "caution": BLACKBODY_CAUTION})
+    elif lum["spectra"] == "user_table":
+        from ..photometry.usergrid import read_user_grid
+
+        user = read_user_grid(user_table_path, [b["key"] for b in bands])
+        grid = user.photometry_grid(lum["user_table"]["atmosphere"], extinction_grid=bb if law else None,
+                                    step_dex=grid_cfg["step_dex"])
+        models.append({"name": "user synthetic-photometry table", "reference": lum["user_table"].get("reference", ""),
+                       "file": str(user_table_path), "atmosphere": lum["user_table"]["atmosphere"]}
+                      | ({"caution": USER_GRID_EXTINCTION_CAUTION} if law else {}))
+    else:
+        raise ConfigError(f"luminosity.spectra: unknown model spectra {lum['spectra']!r}")
+    if law:
+        from ..photometry.extinction import ExtinctionLaw
+
+        models.append(ExtinctionLaw(law, float(ext["r_v"])).as_model())
+    vega = sorted({vega_zero_points()[b["passband"]][2] for b in bands if b["system"] == "vega"})
+    if vega:
+        models.append({"name": "vega_zero_points", "reference": "; ".join(vega)})
+    table = grid.to_frame()
+    table = pd.DataFrame({c: table[c].to_numpy() for c in table.columns})
+    specs = {"teff_k": Column("K", "Effective temperature of the model", "phys.temperature.effective"),
+             "ebv_mag": Column("mag", "Colour excess E(B-V) applied to the model spectrum", "phot.color.excess"),
+             "logg_cgs": Column("dex(cm / s2)", "Surface gravity of the model", "phys.gravity"),
+             "mbol_unit": Column("mag", "Apparent bolometric magnitude (IAU 2015 B2) for (R/d)^2 = 1, unreddened",
                                  "phot.mag.bol")}
-    for j, (key, passband, system) in enumerate(bands):
-        table[f"mag_unit_{key}"] = mags[:, j]
-        specs[f"mag_unit_{key}"] = Column("mag", f"Synthetic {system.upper() if system == 'ab' else 'Vega'} magnitude "
-                                                 f"through {passband} for (R/d)^2 = 1", "phot.mag")
-    models = [{"name": "blackbody", "reference": "Planck law; synthetic photometry through speclite passbands; "
-               "AB: Oke, J. B. & Gunn, J. E. 1983, ApJ 266, 713; bolometric scale: IAU 2015 Resolution B2",
-               "caution": BLACKBODY_CAUTION}]
-    if any(b[2] == "vega" for b in bands):
-        from ..photometry.passbands import vega_zero_points
-        refs = sorted({vega_zero_points()[b[1]][2] for b in bands if b[2] == "vega"})
-        models.append({"name": "vega_zero_points", "reference": "; ".join(refs)})
-    return table, specs, models
+    for b in bands:
+        specs[f"mag_{b['key']}"] = Column("mag", f"Synthetic {b['system'].upper() if b['system'] == 'ab' else 'Vega'} "
+                                                 f"magnitude through {b['passband']} for (R/d)^2 = 1", "phot.mag")
+    return table, {c: specs[c] for c in table.columns}, models
 
 
-BLACKBODY_CAUTION = ("Model spectra are blackbodies. White-dwarf atmospheres are not: hydrogen-atmosphere (DA) stars "
-                     "have a Balmer jump and strong Balmer lines, so blackbody colours, Teff from colours and "
-                     "bolometric corrections are biased, most in blue bands and between about 8,000 and 20,000 K.")
+def load_photometry(table):
+    """Photometry grid for the SED fit (:class:`cinderclock.photometry.grid.PhotometryGrid`)."""
+    from ..photometry.grid import PhotometryGrid
 
-
-class PhotometryModel:
-    """Vectorised lookups on a photometry table (see :func:`build_photometry_table`)."""
-
-    def __init__(self, table):
-        self.teff = table["teff_k"].to_numpy(dtype=float)
-        self.log_teff = np.log10(self.teff)
-        self.mbol_unit = table["mbol_unit"].to_numpy(dtype=float)
-        self.mag_unit = {c[len("mag_unit_"):]: table[c].to_numpy(dtype=float)
-                         for c in table.columns if c.startswith("mag_unit_")}
-
-    def bc(self, band, teff):
-        """Bolometric correction BC = m_bol - m_band at ``teff`` (NaN outside the grid)."""
-        lt = np.log10(np.asarray(teff, dtype=float))
-        return np.interp(lt, self.log_teff, self.mbol_unit - self.mag_unit[band], left=np.nan, right=np.nan)
-
-    def teff_from_colour(self, band1, band2, colour):
-        """Teff (K) whose model colour m_band1 - m_band2 equals ``colour`` (NaN outside the grid).
-
-        The blackbody colour falls monotonically as Teff rises, so the inversion is one interpolation.
-        """
-        model = self.mag_unit[band1] - self.mag_unit[band2]
-        order = np.argsort(model)
-        if np.any(np.diff(model[order]) <= 0):
-            raise ConfigError(f"colour {band1}-{band2} is not monotonic in Teff on the model grid")
-        lt = np.interp(np.asarray(colour, dtype=float), model[order], self.log_teff[order], left=np.nan, right=np.nan)
-        return 10.0**lt
+    return PhotometryGrid.from_frame(table)
 
 
 # ---------------------------------------------------------------- mass-radius
