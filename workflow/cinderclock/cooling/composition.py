@@ -94,6 +94,8 @@ CORES = {
     "O": CoreComposition("O", ((8.0, 16.0, 1.0),)),
     "CO": CoreComposition("CO", ((6.0, 12.0, 0.5), (8.0, 16.0, 0.5))),
     "He": CoreComposition("He", ((2.0, 4.0, 1.0),)),
+    # O:Ne:Mg 0.60:0.30:0.10 by mass, the same proportions as cinderclock.massradius.composition
+    "ONe": CoreComposition("ONe", ((8.0, 16.0, 0.60), (10.0, 20.0, 0.30), (12.0, 24.0, 0.10))),
 }
 
 

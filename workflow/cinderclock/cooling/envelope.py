@@ -90,7 +90,7 @@ class EnvelopeModel:
                 "reference": "Mestel, L. 1952, MNRAS 112, 583; Shapiro & Teukolsky 1983, section 4.1",
                 "settings": {"X": self.X, "Z": self.Z, "mu": self.mu, "mu_e": self.mu_e,
                              "calibration": self.calibration,
-                             "constant_erg_s_K-3.5_per_Msun": self.constant_cgs()}}
+                             "constant_erg_s_K-3.5_per_Msun": float(self.constant_cgs())}}
 
 
 #: Envelope presets (see the module docstring for their sources).
