@@ -24,6 +24,10 @@ reference list):
     Catalan et al. 2008, MNRAS 387, 1693: 0.096 Mi + 0.429 (Mi <= 2.7), 0.137 Mi + 0.318
     (Mi > 2.7). Calibrated range 1.0-6.5 Msun from memory (not checked).
 
+Where the quoted segments do not meet exactly (PARSEC: Mf drops by 0.0036 Msun at Mi = 2.80 and
+by 0.0009 at 3.65; MIST: gaps below 0.001), the inverse takes the upper segment for a final mass
+that two segments share; this moves Mi by at most ~0.04 Msun.
+
 Cautions: IFMRs are least constrained at low initial mass (Mi < ~1.5 Msun), where a small error in
 the white-dwarf mass maps to a large error in the progenitor mass and lifetime; white dwarfs
 below ~0.5 Msun may come from binary evolution and have no single-star progenitor at all.
