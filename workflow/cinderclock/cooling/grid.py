@@ -176,11 +176,11 @@ class CoolingGrid:
         mass_msun, log_lum : array_like
             Mass in Msun and log10 L/Lsun (broadcast together).
         """
+        if column == "age_yr":
+            return self.age_yr(mass_msun, log_lum)[0]
         m, x = np.broadcast_arrays(np.asarray(mass_msun, dtype=float), np.asarray(log_lum, dtype=float))
         i, wi = _bracket(self.masses, m)
         j, wj = _bracket(self.log_lum, x)
-        if column == "age_yr":
-            return self.age_yr(m, x)[0]
         v = _bilinear(self.columns[column], i, wi, j, wj)
         outside = (m < self.masses[0]) | (m > self.masses[-1]) | (x < self.log_lum[0]) | (x > self.log_lum[-1])
         return np.where(outside, np.nan, v)
