@@ -35,7 +35,18 @@ from __future__ import annotations
 import numpy as np
 
 from ..constants import G_SI, M_SUN_KG, R_SUN_M
+from ..relation import PublishedRelation, ValidRange
 from .eos import DENSITY_SCALE_CGS, PRESSURE_SCALE_CGS, coulomb_kappa, pressure_from_x_cgs, zero_pressure_x
+
+CHANDRASEKHAR_1939 = PublishedRelation(
+    key="chandrasekhar1939",
+    reference="Chandrasekhar, S. 1935, MNRAS 95, 207; Chandrasekhar, S. 1939, An Introduction to the Study "
+              "of Stellar Structure (University of Chicago Press), ch. XI (zero-temperature white dwarfs "
+              "with the exact degenerate-electron pressure), integrated numerically here",
+    ranges=(ValidRange("mass", 0.05, 1.35, "solMass"),),
+    note="Newtonian, T = 0, no neutronisation; above ~1.35 Msun (mu_e = 2) general relativity and inverse "
+         "beta decay make real stars unstable before the model's limiting mass (upper end of our choosing)",
+)
 
 _G_CGS = G_SI * 1e3                     # cm^3 g^-1 s^-2
 _M_SUN_G = M_SUN_KG * 1e3

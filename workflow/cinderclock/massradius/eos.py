@@ -32,6 +32,18 @@ from __future__ import annotations
 import numpy as np
 
 from ..constants import C_SI, E_CHARGE_SI, EPS0_SI, HBAR_SI, M_E_SI, M_U_SI
+from ..relation import PublishedRelation, ValidRange
+
+SALPETER_1961 = PublishedRelation(
+    key="salpeter1961",
+    reference="Salpeter, E. E. 1961, ApJ 134, 669 (energy and pressure of a zero-temperature plasma); "
+              "lattice term as in Shapiro, S. L. & Teukolsky, S. A. 1983, Black Holes, White Dwarfs and "
+              "Neutron Stars (Wiley), section 2.4; applied to white dwarfs by Hamada, T. & Salpeter, E. E. "
+              "1961, ApJ 134, 683",
+    ranges=(ValidRange("density", 1e2, 1e11, "g cm-3"),),
+    note="leading Wigner-Seitz lattice term only (Thomas-Fermi, exchange and correlation terms omitted); "
+         "assumes full pressure ionisation, poor below ~1e2 g cm^-3 (range of our choosing)",
+)
 
 # --- constants of the Chandrasekhar equation of state, cgs ------------------------------------
 _CM = 100.0               # cm per m

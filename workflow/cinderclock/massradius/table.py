@@ -1,0 +1,166 @@
+"""Mass-radius tables in (mass, Teff): built once per configuration, then interpolated.
+
+:func:`build_mass_radius_table` integrates the zero-temperature sequence of the chosen core
+(:mod:`~cinderclock.massradius.chandrasekhar`), interpolates it onto the mass grid and adds the
+finite-temperature envelope (:mod:`~cinderclock.massradius.envelope`) at every Teff. The result
+is a long pandas DataFrame of plain float columns (Parquet-ready, see :data:`TABLE_COLUMNS` for
+:func:`cinderclock.tableio.write_table`); settings and model references sit in ``df.attrs``.
+:class:`~cinderclock.massradius.grid.MassRadiusGrid` (re-exported here) interpolates it.
+
+CAUTION: the finite-temperature part is a simplified envelope model; radii differ from detailed
+evolutionary models by some per cent. Rows where the model does not apply (envelope not bound,
+or more than ``max_envelope_mass_fraction`` of the star above the degeneracy boundary, which
+breaks the thin-envelope assumption) have NaN radius and log g, and the inversion reports them
+as outside the table.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..constants import G_SI, M_SUN_KG, R_SUN_M
+from ..tableio import Column
+from .chandrasekhar import CHANDRASEKHAR_1939, zero_temperature_sequence
+from .composition import core_composition
+from .envelope import DEEP_ENVELOPE, MESTEL_KRAMERS_ENVELOPE, finite_temperature_radius
+from .envelope import hydrogen_layer as _lookup_layer
+from .eos import SALPETER_1961
+from .grid import MassRadiusGrid  # noqa: F401  (re-exported: the table and its interpolator go together)
+
+#: Default mass grid in Msun: 0.10 to 1.34 in steps of 0.005 (upper end below the Newtonian
+#: model's range limit, CHANDRASEKHAR_1939).
+DEFAULT_MASS_GRID = np.round(np.arange(0.10, 1.34 + 1e-9, 0.005), 6)
+#: Default Teff grid in K: 121 points, uniform in log from 3000 K to 150000 K.
+DEFAULT_TEFF_GRID = np.geomspace(3000.0, 150000.0, 121)
+#: Largest envelope mass fraction (mass above the degeneracy boundary / M) kept in a table; above
+#: it the thin-envelope assumption of the model fails (our choice).
+MAX_ENVELOPE_MASS_FRACTION = 0.1
+
+#: Column descriptions for cinderclock.tableio.write_table.
+TABLE_COLUMNS = {
+    "mass_msun": Column("solMass", "White-dwarf mass", "phys.mass"),
+    "teff_k": Column("K", "Effective temperature", "phys.temperature.effective"),
+    "radius_rsun": Column("solRad", "Photospheric radius with the finite-temperature envelope "
+                          "(NaN where the envelope model does not apply)", "phys.size.radius"),
+    "logg_cgs": Column("dex(cm/s2)", "log10 of surface gravity G M / R^2", "phys.gravity"),
+    "radius_zero_t_rsun": Column("solRad", "Radius of the zero-temperature model of the same core",
+                                 "phys.size.radius"),
+    "core_temp_k": Column("K", "Isothermal core temperature from the Mestel envelope relation", "phys.temperature"),
+    "log_lum": Column("dex(solLum)", "log10 of the luminosity 4 pi R^2 sigma Teff^4 in solar units",
+                      "phys.luminosity"),
+    "envelope_mass_fraction": Column("", "Mass above the degeneracy boundary over the total mass", "phys.mass;arith.ratio"),
+    "hydrogen_base_temp_k": Column("K", "Temperature at the base of the hydrogen layer", "phys.temperature"),
+}
+
+
+def _zero_t_radius_function(mu_e, ion_charge, coulomb):
+    """Cubic spline of log R0 against log M from a dense zero-temperature sequence."""
+    from scipy.interpolate import CubicSpline
+
+    seq = zero_temperature_sequence(mu_e, ion_charge, coulomb, np.linspace(2.5, 11.5, 361))
+    spline = CubicSpline(np.log(seq["mass_msun"]), np.log(seq["radius_rsun"]))
+    m_lo, m_hi = seq["mass_msun"][0], seq["mass_msun"][-1]
+
+    def radius0(mass_msun):
+        m = np.asarray(mass_msun, dtype=float)
+        ok = (m >= m_lo) & (m <= m_hi)
+        return np.where(ok, np.exp(spline(np.log(np.where(ok, m, 1.0)))), np.nan)
+
+    return radius0
+
+
+def build_mass_radius_table(core="CO", hydrogen_layer="thick", coulomb=True, mass_grid=None,
+                            teff_grid=None, max_envelope_mass_fraction=MAX_ENVELOPE_MASS_FRACTION):
+    """Tabulate radius and log g over (mass, Teff) for one core and hydrogen-layer choice.
+
+    Parameters
+    ----------
+    core : {"CO", "He", "ONe"} or CoreComposition
+        Core composition (sets mu_e and the Coulomb ion charge), see
+        :mod:`cinderclock.massradius.composition`.
+    hydrogen_layer : {"thick", "thin"} or HydrogenLayer
+        Hydrogen-layer mass (q_H = 1e-4 or 1e-10), see :mod:`cinderclock.massradius.envelope`.
+    coulomb : bool
+        Include the Salpeter (1961) lattice correction in the core.
+    mass_grid : array_like, optional
+        Masses in Msun, strictly increasing (default :data:`DEFAULT_MASS_GRID`).
+    teff_grid : array_like, optional
+        Effective temperatures in K, strictly increasing (default :data:`DEFAULT_TEFF_GRID`).
+    max_envelope_mass_fraction : float
+        Rows whose envelope holds more than this fraction of the mass are set to NaN.
+
+    Raises
+    ------
+    cinderclock.errors.ModelRangeError
+        If a grid reaches outside the valid range of a model used (mass 0.1-1.35 Msun,
+        Teff 3000-150000 K; see the ``ranges`` of the PublishedRelation constants).
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per (mass, Teff), mass varying slowest, with the float columns of
+        :data:`TABLE_COLUMNS`. ``df.attrs["settings"]`` holds the configuration (JSON-ready) and
+        ``df.attrs["models"]`` a list of ``{"name", "reference", ...}`` entries for provenance.
+
+    Notes
+    -----
+    Build time is about a second. The finite-temperature envelope is a simplified model (radii
+    differ from detailed evolutionary models by some per cent).
+    """
+    import pandas as pd
+
+    comp = core_composition(core)
+    layer = _lookup_layer(hydrogen_layer)
+    masses = np.asarray(DEFAULT_MASS_GRID if mass_grid is None else mass_grid, dtype=float)
+    teffs = np.asarray(DEFAULT_TEFF_GRID if teff_grid is None else teff_grid, dtype=float)
+    for name, arr in (("mass_grid", masses), ("teff_grid", teffs)):
+        if arr.ndim != 1 or arr.size < 2 or np.any(np.diff(arr) <= 0) or not np.all(np.isfinite(arr)):
+            raise ValueError(f"{name} must be a strictly increasing 1-d array of at least two finite values")
+    # never tabulate outside the stated ranges of the models used (raises ModelRangeError)
+    CHANDRASEKHAR_1939.check(strict=True, mass=masses)
+    MESTEL_KRAMERS_ENVELOPE.check(strict=True, mass=masses)
+    MESTEL_KRAMERS_ENVELOPE.check(strict=True, teff=teffs)
+    ion_charge = comp.coulomb_charge if coulomb else None
+    radius0 = _zero_t_radius_function(comp.mu_e, ion_charge, coulomb)(masses)
+    if np.any(~np.isfinite(radius0)):
+        raise ValueError(f"mass grid reaches beyond the zero-temperature sequence of core {comp.name}")
+    m2, t2 = np.meshgrid(masses, teffs, indexing="ij")
+    r0_2 = np.broadcast_to(radius0[:, None], m2.shape)
+    env = finite_temperature_radius(m2, t2, r0_2, layer, comp.mu_e, ion_charge)
+    radius = env["radius_rsun"]
+    bad = ~(env["envelope_mass_fraction"] <= max_envelope_mass_fraction)
+    radius = np.where(bad, np.nan, radius)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        logg = np.log10(G_SI * m2 * M_SUN_KG / (radius * R_SUN_M) ** 2 * 100.0)
+    df = pd.DataFrame({
+        "mass_msun": m2.ravel(),
+        "teff_k": t2.ravel(),
+        "radius_rsun": radius.ravel(),
+        "logg_cgs": logg.ravel(),
+        "radius_zero_t_rsun": r0_2.ravel().copy(),
+        "core_temp_k": env["core_temp_k"].ravel(),
+        "log_lum": env["log_lum"].ravel(),
+        "envelope_mass_fraction": env["envelope_mass_fraction"].ravel(),
+        "hydrogen_base_temp_k": env["hydrogen_base_temp_k"].ravel(),
+    })
+    models = [CHANDRASEKHAR_1939.as_model(), MESTEL_KRAMERS_ENVELOPE.as_model()]
+    if coulomb:
+        models.insert(1, SALPETER_1961.as_model())
+    df.attrs["settings"] = {
+        "core": comp.name,
+        "composition": comp.as_dict(),
+        "mu_e": comp.mu_e,
+        "coulomb": bool(coulomb),
+        "coulomb_ion_charge": ion_charge,
+        "hydrogen_layer": layer.name,
+        "hydrogen_mass_fraction": layer.mass_fraction,
+        "hydrogen_layer_mu": layer.mu,
+        "deep_envelope": {"X": DEEP_ENVELOPE.X, "Z": DEEP_ENVELOPE.Z, "mu": DEEP_ENVELOPE.mu},
+        "max_envelope_mass_fraction": float(max_envelope_mass_fraction),
+        "n_mass": int(masses.size),
+        "n_teff": int(teffs.size),
+        "caution": "finite-temperature envelope is a simplified Mestel/Kramers model: radii differ from "
+                   "detailed evolutionary models by some per cent; Newtonian zero-temperature core",
+    }
+    df.attrs["models"] = models
+    return df
