@@ -177,6 +177,42 @@ def _segment_integral(f0, f1, dx):
     return np.where(ok, powerlaw, trap)
 
 
+#: Masses integrated together in one block of (mass, T_c, shell) arrays.
+_MASS_CHUNK = 4
+
+
+def _shell_sums(rho_shell, weight, tc, comp, sw):
+    """Mass-weighted heat capacity (k_B per g) and neutrino emissivity (erg g^-1 s^-1).
+
+    ``rho_shell`` and ``weight`` have shape (n_mass, n_shell); ``tc`` shape (n_tc,). Returns two
+    arrays of shape (n_mass, n_tc).
+    """
+    ions_per_g = comp.ions_per_mu / _M_U_G
+    electrons_per_g = comp.ye / _M_U_G
+    t3 = tc[None, :, None]                                         # (1, n_tc, 1)
+    rho3 = rho_shell[:, None, :]                                   # (n_mass, 1, n_shell)
+    w3 = weight[:, None, :]
+    if sw.crystallization:
+        solid = t3 < cryst.melting_temperature_k(rho3, comp, sw.gamma_melt)
+        theta = cryst.debye_temperature_k(rho3, comp, sw.debye_to_plasma)
+        c_ion = hc.ion_heat_capacity_kb(t3, theta, solid)
+    else:
+        c_ion = np.full((1, 1, 1), 1.5)
+    cap = np.sum(w3 * c_ion, axis=2) * ions_per_g
+    if sw.electrons:
+        c_el = hc.electron_heat_capacity_kb(t3, np.maximum(rho3, RHO_FLOOR_CGS), comp.ye)
+        cap = cap + np.sum(w3 * c_el, axis=2) * electrons_per_g
+    cap = np.broadcast_to(cap, (rho_shell.shape[0], tc.size))
+    eps_mean = np.zeros((rho_shell.shape[0], tc.size))
+    if sw.neutrinos:
+        hot = tc >= nu.T_MIN_K
+        if np.any(hot):
+            eps = nu.emissivity_erg_g_s(rho3 * np.ones((1, int(hot.sum()), 1)), t3[:, hot, :],
+                                        comp.abar, comp.zbar)
+            eps_mean[:, hot] = np.sum(w3 * eps, axis=2)
+    return cap, eps_mean
+
+
 def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profiles=None,
                    log_tc_start=8.5, log_lum_end=-18.0, dlog_tc=0.005, n_shell=200):
     """Integrate the cooling of white dwarfs of several masses at once.
@@ -230,9 +266,7 @@ def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profile
     radius = np.array([_profile_radius(p, m, comp.mu_e) for p, m in zip(profiles, masses)])
 
     mass_g = masses * _M_SUN_G                                     # (n_mass,)
-    ions_per_g = comp.ions_per_mu / _M_U_G
-    electrons_per_g = comp.ye / _M_U_G
-    n_ion = mass_g * ions_per_g                                    # (n_mass,)
+    n_ion = mass_g * comp.ions_per_mu / _M_U_G                                    # (n_mass,)
 
     # crystallised fraction from the full-resolution profiles
     if sw.crystallization:
@@ -240,32 +274,18 @@ def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profile
     else:
         qc = np.zeros((masses.size, n_tc))
 
-    # heat capacity dU/dT in erg K^-1 (n_mass, n_tc), built shell by shell over all T at once
-    t3 = tc[None, :, None]                                         # (1, n_tc, 1)
-    rho3 = rho_shell[:, None, :]                                   # (n_mass, 1, n_shell)
-    w3 = weight[:, None, :]
-    if sw.crystallization:
-        solid = t3 < cryst.melting_temperature_k(rho3, comp, sw.gamma_melt)
-        theta = cryst.debye_temperature_k(rho3, comp, sw.debye_to_plasma)
-        c_ion = hc.ion_heat_capacity_kb(t3, theta, solid)
-    else:
-        c_ion = np.full((1, 1, 1), 1.5)
-    cap = np.sum(w3 * c_ion, axis=2) * ions_per_g                   # k_B per g, per unit mass fraction
-    if sw.electrons:
-        c_el = hc.electron_heat_capacity_kb(t3, np.maximum(rho3, RHO_FLOOR_CGS), comp.ye)
-        cap = cap + np.sum(w3 * c_el, axis=2) * electrons_per_g
-    cap = np.broadcast_to(cap, (masses.size, n_tc))
+    # heat capacity (k_B per gram) and mean neutrino emissivity (erg g^-1 s^-1) on the
+    # (mass, T_c) grid, a few masses at a time to bound the memory of the (mass, T_c, shell) arrays
+    cap = np.empty((masses.size, n_tc))
+    eps_mean = np.zeros((masses.size, n_tc))
+    for lo in range(0, masses.size, _MASS_CHUNK):
+        sl = slice(lo, lo + _MASS_CHUNK)
+        cap[sl], eps_mean[sl] = _shell_sums(rho_shell[sl], weight[sl], tc, comp, sw)
     dU_dT = cap * _K_B_CGS * mass_g[:, None]                        # erg K^-1
 
     # luminosities in erg s^-1
     l_photon = env.constant_cgs() * masses[:, None] * tc[None, :] ** 3.5
-    l_nu = np.zeros_like(l_photon)
-    if sw.neutrinos:
-        hot = tc >= nu.T_MIN_K
-        if np.any(hot):
-            eps = nu.emissivity_erg_g_s(rho3 * np.ones((1, int(hot.sum()), 1)), t3[:, hot, :],
-                                        comp.abar, comp.zbar)
-            l_nu[:, hot] = np.sum(w3 * eps, axis=2) * mass_g[:, None]
+    l_nu = eps_mean * mass_g[:, None]
     l_total = l_photon + l_nu
 
     # time per unit ln T: integrand (erg K^-1 * K / erg s^-1) = s
