@@ -32,7 +32,7 @@ def test_defaults_are_filled(config):
     validate(cfg)
     assert cfg["results_dir"] == "results"
     assert cfg["select"]["min_parallax_over_error"] == 5.0
-    assert cfg["cooling"]["model"] == "mestel"
+    assert cfg["cooling"]["model"] == "numerical"
     assert cfg["luminosity"]["distance"]["min_parallax_over_error_inverse"] == 10.0
 
 

@@ -84,7 +84,7 @@ def test_outputs_describe_themselves(run_dir):
     assert prov["catalogue_sha256"] == file_checksum(run_dir / "catalogue.csv")
     assert {"ingest", "select", "luminosity", "mass", "cooling"} <= set(prov["stages"])
     refs = json.dumps(prov["stages"]["cooling_model"]["models"])
-    assert "Mestel" in refs and "Chandrasekhar" in json.dumps(prov["stages"]["mass_radius_model"]["models"])
+    assert "Itoh" in refs and "Mestel" in refs and "Chandrasekhar" in json.dumps(prov["stages"]["mass_radius_model"]["models"])
 
 
 def test_second_run_has_nothing_to_do(run_dir):
@@ -95,7 +95,7 @@ def test_cooling_change_reruns_only_cooling_and_after(run_dir):
     cfg_path = run_dir / "config" / "config.yaml"
     original = cfg_path.read_text()
     cfg = yaml.safe_load(original)
-    cfg["cooling"]["mestel"]["ion_mass_number"] = 16.0
+    cfg["cooling"]["envelope"] = "H"
     cfg_path.write_text(yaml.safe_dump(cfg))
     try:
         jobs = planned_jobs(run_dir)

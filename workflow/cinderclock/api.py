@@ -47,7 +47,8 @@ class ModelSet:
 
     photometry: object
     mass_radius: object
-    cooling: M.CoolingModel
+    cooling: object
+    compare: object
     references: dict
 
     @classmethod
@@ -56,8 +57,14 @@ class ModelSet:
         user = lum["user_table"]["path"] if lum["spectra"] == "user_table" else None
         p_tab, _, p_ref = M.build_photometry_table(stage_settings(config, "photometry_model"), user_table_path=user)
         m_tab, _, m_ref = M.build_mass_radius_table(stage_settings(config, "mass_radius_model"))
-        c_tab, _, c_ref = M.build_cooling_table(stage_settings(config, "cooling_model"))
-        return cls(M.load_photometry(p_tab), M.load_mass_radius(m_tab), M.CoolingModel(c_tab),
+        cool = config["cooling"]
+        tracks = (cool.get("user_tracks") or {}).get("path")
+        c_tab, _, c_ref = M.build_cooling_table(stage_settings(config, "cooling_model"), user_tracks_path=tracks)
+        compare = None
+        if cool["compare_with"]:
+            k_tab, _, _ = M.build_cooling_table(stage_settings(config, "cooling_model"), "compare", tracks)
+            compare = M.load_cooling(k_tab)
+        return cls(M.load_photometry(p_tab), M.load_mass_radius(m_tab), M.load_cooling(c_tab), compare,
                    {"photometry": p_ref, "mass_radius": m_ref, "cooling": c_ref})
 
 
@@ -104,6 +111,6 @@ def run_chain(catalogue, config, models=None):
     t, r2 = luminosity(t, stage_settings(config, "luminosity"), models.photometry)
     counts["luminosity"] = len(t)
     t = mass(t, stage_settings(config, "mass"), models.mass_radius)
-    t = cooling(t, stage_settings(config, "cooling"), models.cooling)
+    t = cooling(t, stage_settings(config, "cooling"), models.cooling, models.compare)
     counts["final"] = len(t)
     return ChainResult(table=t, rejects=concat_rejects([r0, r1, r2]), counts=counts, models=models.references)

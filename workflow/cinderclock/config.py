@@ -24,7 +24,7 @@ STAGE_SECTIONS = {
     "mass_radius_model": ("mass",),
     "mass": ("mass",),
     "cooling_model": ("cooling",),
-    "cooling": ("cooling",),
+    "cooling": ("cooling", "progenitor"),
 }
 
 

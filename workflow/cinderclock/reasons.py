@@ -52,6 +52,7 @@ FLAG_BITS = {
     "progenitor_uncertain": (13, "Progenitor lifetime too uncertain for a reliable total age"),
     "mc_off_table": (14, "More than the configured fraction of Monte Carlo draws fell off the model tables"),
     "teff_at_grid_edge": (15, "Photometric Teff at an end of the model grid: a bound, not a fit"),
+    "older_than_universe": (16, "Total age exceeds the age of the Universe (Planck 2018, via astropy)"),
 }
 
 REJECT_COLUMNS = {

@@ -1,10 +1,18 @@
-# Cooling: cooling age from mass and luminosity, per shard.
+# Cooling: cooling age, progenitor and total age from mass and luminosity, per shard.
+
+
+def cooling_tables(wildcards):
+    """The adopted cooling table, and the comparison table when one is configured."""
+    tables = {"cooling": f"{R}/models/cooling_primary.parquet"}
+    if config["cooling"]["compare_with"]:
+        tables["compare"] = f"{R}/models/cooling_compare.parquet"
+    return tables
 
 
 rule cooling:
     input:
+        unpack(cooling_tables),
         table=f"{R}/mass/{{shard}}.parquet",
-        cooling=f"{R}/models/cooling.parquet",
     output:
         table=f"{R}/cooling/{{shard}}.parquet",
     log:

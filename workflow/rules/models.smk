@@ -7,6 +7,13 @@ def user_photometry_table(wildcards):
     return {"user_table": lum["user_table"]["path"]} if lum["spectra"] == "user_table" else {}
 
 
+def user_cooling_tracks(wildcards):
+    """The user's cooling tracks, when either cooling model is 'user_tracks'."""
+    cool = config["cooling"]
+    wanted = "user_tracks" in (cool["model"], cool["compare_with"])
+    return {"user_tracks": cool["user_tracks"]["path"]} if wanted else {}
+
+
 rule photometry_model:
     input:
         unpack(user_photometry_table),
@@ -34,12 +41,16 @@ rule mass_radius_model:
 
 
 rule cooling_model:
+    input:
+        unpack(user_cooling_tracks),
     output:
-        f"{R}/models/cooling.parquet",
+        f"{R}/models/cooling_{{which}}.parquet",
     log:
-        f"{R}/logs/models/cooling.log",
+        f"{R}/logs/models/cooling_{{which}}.log",
     params:
         settings=settings("cooling_model"),
+    wildcard_constraints:
+        which="primary|compare",
     threads: 1
     script:
         "../scripts/model_cooling.py"

@@ -1,12 +1,14 @@
-"""Rule script: build the cooling-model table."""
+"""Rule script: build a cooling table (the adopted model, or the comparison model)."""
 from cinderclock.runner import run, stage_provenance, write_stage
 
 
 def body(smk):
     from cinderclock.stages.models import build_cooling_table
 
-    table, specs, models = build_cooling_table(smk.params.settings)
-    prov = stage_provenance("cooling_model", smk.params.settings, inputs=(), models=models)
+    user = smk.input.get("user_tracks") if hasattr(smk.input, "get") else None
+    table, specs, models = build_cooling_table(smk.params.settings, which=smk.wildcards.which,
+                                               user_tracks_path=user)
+    prov = stage_provenance("cooling_model", smk.params.settings, inputs=[user] if user else (), models=models)
     write_stage(table, smk.output[0], specs, prov, "cooling_model")
 
 

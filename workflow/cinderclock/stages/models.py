@@ -136,36 +136,53 @@ def load_mass_radius(table):
 
 
 # ---------------------------------------------------------------- cooling
-def build_cooling_table(settings):
-    """Cooling-model parameters (Mestel's law: one row holding its age coefficient)."""
+def _cooling_frame(cool, model, user_tracks_path=None):
+    """One cooling table (long format) for ``model`` with the shared cooling settings."""
+    if model == "user_tracks":
+        from ..cooling.usertracks import read_user_tracks
+
+        return read_user_tracks(user_tracks_path, composition=(cool.get("user_tracks") or {}).get("composition"))
+    from ..cooling.envelope import calibration_for_coefficient
+    from ..cooling.table import build_cooling_table as build
+
+    cal = None
+    if cool["calibration"]["coefficient_yr"] is not None:
+        cal = calibration_for_coefficient(cool["calibration"]["coefficient_yr"], envelope=cool["envelope"])
+    m = cool["masses_msun"]
+    masses = np.round(np.arange(m["min"], m["max"] + 0.5 * m["step"], m["step"]), 6)
+    phys = cool["physics"]
+    return build(model=model, masses=masses, envelope=cool["envelope"], core=cool["core"],
+                 neutrinos=phys["neutrinos"], crystallization=phys["crystallization"],
+                 latent_heat=phys["latent_heat"], electrons=phys["electrons"], calibration=cal)
+
+
+def build_cooling_table(settings, which="primary", user_tracks_path=None):
+    """Cooling table of the configured model (``which="primary"``) or of the comparison model.
+
+    Returns ``(table, specs, models)`` with the long format of
+    :func:`cinderclock.cooling.table.build_cooling_table`.
+    """
+    from ..cooling.table import table_columns
+
     cool = settings["cooling"]
-    if cool["model"] != "mestel":
-        raise ConfigError(f"cooling.model: unknown model {cool['model']!r}")
-    from ..cooling.mestel import MESTEL_1952, age_coefficient_yr
-
-    m = cool["mestel"]
-    if m.get("coefficient_yr") is not None:
-        coeff, source = float(m["coefficient_yr"]), m.get("coefficient_source", "user-supplied")
-    else:
-        env = m["envelope"]
-        coeff = age_coefficient_yr(m["ion_mass_number"], X=env["X"], Z=env["Z"], mu=env["mu"], mu_e=env["mu_e"])
-        source = "derived from the Kramers-envelope constants (Shapiro & Teukolsky 1983, section 4.1)"
-    table = pd.DataFrame({"coefficient_yr": [coeff], "ion_mass_number": [float(m["ion_mass_number"])]})
-    specs = {"coefficient_yr": Column("yr", "k in t = k (M/Msun)^(5/7) (L/Lsun)^(-5/7)", ""),
-             "ion_mass_number": Column("", "Mean mass number of the core ions", "")}
-    return table, specs, [MESTEL_1952.as_model() | {"coefficient_yr": coeff, "coefficient_source": source,
-                                                    "caution": MESTEL_1952.note}]
+    model = cool["model"] if which == "primary" else cool["compare_with"]
+    if model is None:
+        raise ConfigError("cooling.compare_with is not set")
+    df = _cooling_frame(cool, model, user_tracks_path)
+    info = dict(df.attrs.get("cooling_model", {}))
+    if cool["calibration"]["coefficient_yr"] is not None and model != "user_tracks":
+        info["calibration"] = {"coefficient_yr": cool["calibration"]["coefficient_yr"],
+                               "source": cool["calibration"]["source"]}
+    info.setdefault("name", f"cooling_{model}")
+    info.setdefault("reference", "")
+    cols = table_columns()
+    df = pd.DataFrame({c: df[c].to_numpy() for c in df.columns})
+    specs = {c: cols.get(c, Column("", c, "")) for c in df.columns}
+    return df, specs, [info]
 
 
-class CoolingModel:
-    """Cooling ages from the cooling table."""
+def load_cooling(table):
+    """Vectorised cooling look-ups (:class:`cinderclock.cooling.grid.CoolingGrid`)."""
+    from ..cooling.grid import CoolingGrid
 
-    def __init__(self, table):
-        self.coefficient_yr = float(table["coefficient_yr"].iloc[0])
-
-    def age_yr(self, mass, log_lum):
-        """(age in yr, in-range mask)."""
-        from ..cooling.mestel import MESTEL_1952, cooling_age_yr
-
-        age = cooling_age_yr(mass, log_lum, self.coefficient_yr)
-        return age, MESTEL_1952.inside(mass=mass, log_lum=log_lum)
+    return CoolingGrid.from_frame(table)
