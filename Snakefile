@@ -12,6 +12,7 @@ include: "workflow/rules/select.smk"
 include: "workflow/rules/luminosity.smk"
 include: "workflow/rules/mass.smk"
 include: "workflow/rules/cooling.smk"
+include: "workflow/rules/uncertainty.smk"
 include: "workflow/rules/final.smk"
 
 

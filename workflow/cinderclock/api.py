@@ -29,6 +29,7 @@ from .stages.ingest import ingest, wanted_columns
 from .stages.luminosity import luminosity
 from .stages.mass import mass
 from .stages.select import select
+from .stages.uncertainty import uncertainty
 
 
 @dataclass
@@ -80,7 +81,7 @@ def _raw_from_frame(df, config):
 
 
 def run_chain(catalogue, config, models=None):
-    """Run ingest, select, luminosity, mass and cooling on one table.
+    """Run ingest, select, luminosity, mass, cooling and uncertainty on one table.
 
     Parameters
     ----------
@@ -112,5 +113,6 @@ def run_chain(catalogue, config, models=None):
     counts["luminosity"] = len(t)
     t = mass(t, stage_settings(config, "mass"), models.mass_radius)
     t = cooling(t, stage_settings(config, "cooling"), models.cooling, models.compare)
+    t = uncertainty(t, stage_settings(config, "uncertainty"), models.mass_radius, models.cooling)
     counts["final"] = len(t)
     return ChainResult(table=t, rejects=concat_rejects([r0, r1, r2]), counts=counts, models=models.references)

@@ -4,7 +4,7 @@
 rule final:
     input:
         manifest=f"{R}/ingest/manifest.json",
-        tables=per_shard("{R}/cooling/{shard}.parquet"),
+        tables=per_shard("{R}/uncertainty/{shard}.parquet"),
         rejects=per_shard(
             "{R}/ingest/shards/{shard}.rejects.parquet",
             "{R}/select/{shard}.rejects.parquet",

@@ -141,7 +141,8 @@ def fit_sed(mags, errs, grid, ebv=0.0, distance_pc=None, *, distance_lo_pc=None,
         ``teff_k``, ``teff_err_k``, ``log_solid_angle`` (log10 (R/d)^2) and its ``_err``,
         ``radius_rsun``, ``radius_err_rsun``, ``log_lum`` (log10 L/Lsun) and ``log_lum_err``,
         ``mbol`` and ``mbol_err`` (absolute bolometric magnitude, IAU 2015 B2), ``chi2``,
-        ``n_bands`` (bands used; chi2 has n_bands - 2 degrees of freedom, n_bands - 1 at fixed
+        ``teff_solid_angle_corr`` (correlation of log10 Teff and log10 (R/d)^2 in the linearised
+        fit, for Monte Carlo draws), ``n_bands`` (bands used; chi2 has n_bands - 2 degrees of freedom, n_bands - 1 at fixed
         Teff), ``teff_at_grid_edge`` (fitted Teff within ``coarse_step_dex`` of an end of the
         grid: Teff may be a bound, not a fit) and ``method`` (``"sed"``, ``"colour"``, ``"fixed_teff"`` or
         ``"none"``).
@@ -368,3 +369,6 @@ def _add_physical(out, dist, d_lo, d_hi, n):
         out["log_lum_err"] = np.sqrt(np.maximum(var_log_l, 0.0))
         out["mbol"] = absolute_bolometric_magnitude(out["log_lum"])
         out["mbol_err"] = 2.5 * out["log_lum_err"]
+        # correlation of log10 Teff and log10 (R/d)^2 in the linearised fit (0 where Teff is exact)
+        rho = -cov / np.sqrt(var_x * var_delta)
+        out["teff_solid_angle_corr"] = np.where(np.isfinite(rho), np.clip(rho, -1.0, 1.0), 0.0)

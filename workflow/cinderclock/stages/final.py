@@ -16,7 +16,7 @@ from ..tableio import StreamingTableWriter, read_metadata, read_table
 
 STAGE = "final"
 #: Stage order of the chain, for the counts.
-STAGE_ORDER = ("ingest", "select", "luminosity", "mass", "cooling")
+STAGE_ORDER = ("ingest", "select", "luminosity", "mass", "cooling", "uncertainty")
 
 
 def _provenance(blocks, extra):

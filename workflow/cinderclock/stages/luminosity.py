@@ -51,6 +51,12 @@ def column_specs(bands):
         "radius_phot_rsun": Column("solRad", "Photometric radius: distance times the square root of the fitted "
                                              "solid angle", "phys.size.radius"),
         "radius_phot_err_rsun": Column("solRad", "Uncertainty of radius_phot_rsun", "stat.error;phys.size.radius"),
+        "log_solid_angle": Column("", "log10 of the fitted solid angle (R/d)^2", "phys.angSize"),
+        "log_solid_angle_err": Column("", "Uncertainty of log_solid_angle", "stat.error;phys.angSize"),
+        "teff_solid_angle_corr": Column("", "Correlation of log10 Teff and log_solid_angle in the fit",
+                                        "stat.correlation"),
+        "dlogteff_debv": Column("mag-1", "Derivative of log10 Teff of the fit with respect to E(B-V)", "arith.diff"),
+        "dlogsa_debv": Column("mag-1", "Derivative of log_solid_angle with respect to E(B-V)", "arith.diff"),
     }
     for band in bands:
         specs[f"absmag_{band}"] = Column("mag", f"Absolute magnitude in band {band}, not corrected for extinction",
@@ -123,6 +129,16 @@ def luminosity(table, settings, grid):
                   distance_hi_pc=d["distance_hi_pc"], logg=logg if grid.gravity_dependent else None,
                   teff_fixed_k=teff_spec, teff_fixed_err_k=teff_spec_err,
                   error_floor_mag=lum["error_floor_mag"])
+    if ext["mode"] == "column" and "ebv_err_mag" in out and np.any(out["ebv_err_mag"].to_numpy(float) > 0):
+        # slopes of the fit with respect to E(B-V), for the Monte Carlo propagation of its error
+        step = max(float(lum["extinction"]["ebv_step_mag"]), 1e-3)
+        sign = np.where(ebv + step <= grid.ebv[-1], 1.0, -1.0)
+        fit2 = fit_sed(mags, errs, grid, ebv=ebv + sign * step, distance_pc=d["distance_pc"], distance_lo_pc=d["distance_lo_pc"],
+                       distance_hi_pc=d["distance_hi_pc"], logg=logg if grid.gravity_dependent else None,
+                       teff_fixed_k=teff_spec, teff_fixed_err_k=teff_spec_err, error_floor_mag=lum["error_floor_mag"])
+        with np.errstate(divide="ignore", invalid="ignore"):
+            out["dlogteff_debv"] = (np.log10(fit2["teff_k"]) - np.log10(fit["teff_k"])) / (sign * step)
+            out["dlogsa_debv"] = (fit2["log_solid_angle"] - fit["log_solid_angle"]) / (sign * step)
     method = np.asarray(fit["method"])
     source = np.select([method == "fixed_teff", method == "sed", method == "colour"],
                        ["spectroscopic", "sed", "colour"], "none").astype(object)
@@ -144,6 +160,9 @@ def luminosity(table, settings, grid):
     out["log_lum_err"] = fit["log_lum_err"]
     out["radius_phot_rsun"] = fit["radius_rsun"]
     out["radius_phot_err_rsun"] = fit["radius_err_rsun"]
+    out["log_solid_angle"] = fit["log_solid_angle"]
+    out["log_solid_angle_err"] = fit["log_solid_angle_err"]
+    out["teff_solid_angle_corr"] = fit["teff_solid_angle_corr"]
     out[C.FLAGS] = bits
     return out.loc[rj.alive].reset_index(drop=True), rj.rejects()
 
