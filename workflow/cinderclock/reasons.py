@@ -21,6 +21,7 @@ REASONS = {
     "nonfinite_required": "A required quantity (parallax or its error) is missing, NaN or infinite",
     "bad_parallax_error": "The parallax uncertainty is zero or negative",
     "no_photometry": "No usable magnitude in any configured band",
+    "no_position": "No finite RA/Dec, needed to place the star in a sky (HEALPix) shard",
     # select
     "parallax_snr": "Parallax signal-to-noise below the selection limit (includes zero and negative parallaxes)",
     "too_distant": "Distance (inverse corrected parallax) beyond the selection limit",

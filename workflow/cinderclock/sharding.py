@@ -16,7 +16,6 @@ import numpy as np
 import pandas as pd
 
 from .provenance import build, canonical_json
-from .reasons import REJECT_COLUMNS, metadata_block
 from .tableio import read_metadata, write_table
 
 log = logging.getLogger("cinderclock")
@@ -55,38 +54,118 @@ def write_if_changed(df, path, specs, settings, extra_meta=None):
     return True
 
 
-def write_shards(table, rejects, specs, labels, reject_labels, shard_dir, settings):
-    """Write every shard's table and rejects; return the manifest entries.
+def _spill(df, folder, batch):
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+
+    folder.mkdir(parents=True, exist_ok=True)
+    pq.write_table(pa.Table.from_pandas(df, preserve_index=False), folder / f"{batch:06d}.parquet")
+
+
+def _read_pieces(folder):
+    pieces = [pd.read_parquet(p) for p in sorted(folder.glob("*.parquet"))]
+    return pieces
+
+
+def _harmonise_ids(frames):
+    """Integer identifiers stay integers unless some batch had text identifiers: then all are text."""
+    from .columns import ID
+
+    if any(f[ID].dtype.kind not in "iu" for f in frames if len(f)):
+        for f in frames:
+            f[ID] = f[ID].astype(str)
+    return frames
+
+
+def ingest_to_shards(settings, shard_dir, rejects_path, batch_rows=262144):
+    """Ingest the configured catalogue batch by batch into shard files; return the manifest entries.
+
+    Memory stays bounded by one batch plus the largest shard: each batch is vetted and its rows are
+    spilled to per-shard pieces on disk; repeated identifiers are then found over the whole
+    catalogue (first occurrence kept), and each shard is assembled and written only if its content
+    changed.
 
     Parameters
     ----------
-    table, rejects : pandas.DataFrame
-        Accepted rows and rejected rows of the whole catalogue.
-    specs : dict
-        Column descriptions of ``table``.
-    labels, reject_labels : ndarray of str
-        Shard name of each row of ``table`` and of ``rejects``.
-    shard_dir : path
-        Folder for ``<shard>.parquet`` and ``<shard>.rejects.parquet``.
     settings : dict
-        Ingest settings (recorded in provenance).
+        Ingest settings (``catalogue``, ``bands``, ``shards``).
+    shard_dir : path
+        Folder of the ``<shard>.parquet`` files.
+    rejects_path : path
+        The ingest stage's rejects table.
+    batch_rows : int
+        Rows per read batch.
+
+    Returns
+    -------
+    shards : dict
+        ``{shard: {"rows": n, "content_sha256": ...}}``.
+    rows_read : int
     """
+    import shutil
+
+    from .catalogue import iter_catalogue
+    from .columns import ID, ROW
+    from .reasons import REJECT_COLUMNS, concat_rejects, make_rejects, metadata_block
+    from .stages.ingest import STAGE, ingest, shard_labels, wanted_columns
+
     shard_dir = Path(shard_dir)
-    shard_dir.mkdir(parents=True, exist_ok=True)
-    names = sorted(set(np.asarray(labels).tolist()) | set(np.asarray(reject_labels).tolist()))
-    manifest = {}
-    written = 0
+    spill = shard_dir / ".spill"
+    shutil.rmtree(spill, ignore_errors=True)
+    specs, rows_read = {}, 0
+    cat = settings["catalogue"]
+    for b, raw in enumerate(iter_catalogue(cat["path"], wanted_columns(settings), cat.get("format", "auto"),
+                                           batch_rows=batch_rows)):
+        rows_read += len(raw.data) + len(raw.malformed)
+        table, rejects, sp = ingest(raw, settings, dedupe=False)
+        specs.update(sp)
+        labels, off_sky = shard_labels(table, settings)
+        if off_sky.any():
+            rejects = concat_rejects([rejects, make_rejects(table.loc[off_sky, ID], table.loc[off_sky, ROW], STAGE,
+                                                            "no_position", "no finite RA/Dec for the sky shards")])
+            table, labels = table.loc[~off_sky].reset_index(drop=True), labels[~off_sky]
+        for name in np.unique(labels):
+            _spill(table.loc[labels == name], spill / str(name), b)
+        if len(rejects):
+            _spill(rejects, spill / "_rejects", b)
+
+    # repeated identifiers over the whole catalogue: keep the first occurrence
+    names = sorted(p.name for p in spill.glob("*") if p.is_dir() and p.name != "_rejects")
+    import pyarrow.parquet as pq
+
+    ids = [pq.read_table(p, columns=[ID, ROW]).to_pandas() for n in names for p in sorted((spill / n).glob("*.parquet"))]
+    dup_rows = np.zeros(0, dtype=np.int64)
+    if ids:
+        allids = pd.concat([f.astype({ID: str}) for f in ids], ignore_index=True).sort_values(ROW)
+        dup_rows = allids.loc[allids[ID].duplicated(keep="first"), ROW].to_numpy()
+
+    manifest, written, dup_frames = {}, 0, []
     for name in names:
-        part = table.loc[np.asarray(labels) == name].reset_index(drop=True)
-        rej = rejects.loc[np.asarray(reject_labels) == name].reset_index(drop=True)
+        part = pd.concat(_harmonise_ids(_read_pieces(spill / name)), ignore_index=True)
+        part = part.sort_values(ROW, kind="stable").reset_index(drop=True)
+        is_dup = np.isin(part[ROW].to_numpy(), dup_rows)
+        if is_dup.any():
+            d = part.loc[is_dup]
+            dup_frames.append(make_rejects(d[ID], d[ROW], STAGE, "duplicate_id",
+                                           [f"identifier {v!r} appeared earlier" for v in d[ID].astype(str)]))
+            part = part.loc[~is_dup].reset_index(drop=True)
+        if len(part) == 0:
+            continue
         written += write_if_changed(part, shard_dir / f"{name}.parquet", specs, settings)
-        written += write_if_changed(rej, shard_dir / f"{name}.rejects.parquet", REJECT_COLUMNS, settings,
-                                    extra_meta=metadata_block())
-        manifest[name] = {"rows": int(len(part)), "rejected": int(len(rej)),
-                          "content_sha256": content_hash(part, specs)}
-    for stale in shard_dir.glob("s*.parquet"):
+        manifest[name] = {"rows": int(len(part)), "content_sha256": content_hash(part, specs)}
+
+    rejects = concat_rejects(_read_pieces(spill / "_rejects") + dup_frames) if (spill / "_rejects").exists() \
+        else concat_rejects(dup_frames)
+    rejects = rejects.sort_values("input_row", kind="stable").reset_index(drop=True)
+    prov = build("ingest", settings, inputs=(), models=())
+    prov["stages"]["ingest"]["catalogue"] = Path(cat["path"]).name
+    write_table(rejects, rejects_path, REJECT_COLUMNS, dict(prov, **metadata_block()), stage="ingest")
+
+    for stale in shard_dir.glob("*.parquet"):
         if stale.name.split(".")[0] not in manifest:
             stale.unlink()
             log.info("removed stale shard file %s", stale)
-    log.info("%d shard(s); %d file(s) rewritten, the others unchanged", len(names), written)
-    return manifest
+    shutil.rmtree(spill, ignore_errors=True)
+    log.info("%d rows read; %d shard(s); %d rewritten, the others unchanged; %d rejected", rows_read,
+             len(manifest), written, len(rejects))
+    return manifest, rows_read

@@ -7,7 +7,7 @@ R = config["results_dir"]
 
 
 wildcard_constraints:
-    shard=r"s\d{4}",
+    shard=r"(s\d{4}|p\d{6})",
 
 
 def settings(stage):

@@ -5,8 +5,8 @@ rule final:
     input:
         manifest=f"{R}/ingest/manifest.json",
         tables=per_shard("{R}/uncertainty/{shard}.parquet"),
+        ingest_rejects=f"{R}/ingest/rejects.parquet",
         rejects=per_shard(
-            "{R}/ingest/shards/{shard}.rejects.parquet",
             "{R}/select/{shard}.rejects.parquet",
             "{R}/luminosity/{shard}.rejects.parquet",
         ),

@@ -1,4 +1,4 @@
-# Ingest: read the catalogue, map and convert columns, vet rows, cut into shards.
+# Ingest: read the catalogue in batches, map and convert columns, vet rows, cut into shards.
 # Shards are rewritten only when their content changes, so later stages rerun only for them.
 
 
@@ -7,11 +7,13 @@ checkpoint ingest:
         catalogue=config["catalogue"]["path"],
     output:
         manifest=f"{R}/ingest/manifest.json",
+        rejects=f"{R}/ingest/rejects.parquet",
     log:
         f"{R}/logs/ingest/manifest.log",
     params:
         settings=settings("ingest"),
         shard_dir=f"{R}/ingest/shards",
+        batch_rows=262144,
     threads: 1
     script:
         "../scripts/ingest.py"

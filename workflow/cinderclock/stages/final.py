@@ -12,7 +12,7 @@ from collections import Counter
 from ..errors import CinderclockError
 from ..provenance import merge_stages, settings_hash
 from ..reasons import REJECT_COLUMNS, metadata_block
-from ..tableio import StreamingTableWriter, read_metadata, read_table
+from ..tableio import StreamingTableWriter, read_metadata, read_table, write_table
 
 STAGE = "final"
 #: Stage order of the chain, for the counts.
@@ -44,11 +44,20 @@ def merge(table_paths, reject_paths, manifest_path, out_table, out_rejects, out_
     specs = column_specs_from_json(specs)
     prov = _provenance([m.get("provenance", {}) for m in metas], extra) | metadata_block()
     n_final = 0
-    with StreamingTableWriter(out_table, specs, prov, stage=STAGE) as w:
-        for p in table_paths:
-            df, _, _ = read_table(p)
-            n_final += len(df)
-            w.write(df)
+    if table_paths:
+        with StreamingTableWriter(out_table, specs, prov, stage=STAGE) as w:
+            for p in table_paths:
+                df, _, _ = read_table(p)
+                n_final += len(df)
+                w.write(df)
+    else:                                    # every row was rejected: an empty table with the key columns
+        import pandas as pd
+
+        from ..columns import BASE_COLUMNS, ID, INPUT_QUANTITIES
+
+        specs = {ID: INPUT_QUANTITIES["star_id"].spec, **BASE_COLUMNS}
+        write_table(pd.DataFrame({c: pd.Series([], dtype="int64") for c in specs}), out_table, specs, prov,
+                    stage=STAGE)
 
     reasons = Counter()
     by_stage = Counter()

@@ -64,7 +64,7 @@ def _parse_numeric(raw, name, path, rows):
     return parsed, bad
 
 
-def ingest(raw, settings):
+def ingest(raw, settings, dedupe=True):
     """Turn a :class:`~cinderclock.catalogue.RawCatalogue` into the canonical table.
 
     Parameters
@@ -73,6 +73,8 @@ def ingest(raw, settings):
         Columns as read from the file.
     settings : dict
         ``{"catalogue": ..., "bands": ...}`` sections of the configuration.
+    dedupe : bool
+        Reject repeated identifiers here (False when the caller checks them over all batches).
 
     Returns
     -------
@@ -171,9 +173,10 @@ def ingest(raw, settings):
     reject(n_bands == 0, "no_photometry", "no usable magnitude in any configured band")
 
     # duplicated identifiers: keep the first occurrence among the rows still alive
-    live_ids = pd.Series(id_text).where(rj.alive)
-    dup = live_ids.duplicated(keep="first").to_numpy() & rj.alive
-    reject(dup, "duplicate_id", lambda i: [f"identifier {v!r} appeared earlier" for v in id_text[i]])
+    if dedupe:
+        live_ids = pd.Series(id_text).where(rj.alive)
+        dup = live_ids.duplicated(keep="first").to_numpy() & rj.alive
+        reject(dup, "duplicate_id", lambda i: [f"identifier {v!r} appeared earlier" for v in id_text[i]])
 
     for name in cat.get("keep_columns", []):
         values = data[name]
@@ -198,18 +201,36 @@ def load_and_ingest(settings):
 
 
 def shard_labels(table, settings):
-    """Shard name of every row of the canonical table.
+    """Shard name of every row of the canonical table, and the rows that cannot be placed.
 
     ``shards.method: rows`` cuts the catalogue into consecutive blocks of ``rows_per_shard`` input
-    rows (by input position, so an edit to one row changes one shard). Names are ``s0000``, ...
+    rows (by input position, so an edit to one row changes one shard): names ``s0000``, ...
+    ``shards.method: healpix`` groups stars by HEALPix pixel (nested scheme, ``healpix_nside``) of
+    their position (astropy-healpix): names ``p000123``; rows without a finite position cannot be
+    placed.
+
+    Returns
+    -------
+    labels : ndarray of str
+    unplaced : ndarray of bool
     """
     sh = settings.get("shards", {"method": "rows", "rows_per_shard": 250000})
+    n = len(table)
     if sh["method"] == "rows":
         idx = np.asarray(table[C.ROW], dtype=np.int64) // int(sh["rows_per_shard"])
-        return np.char.add("s", np.char.zfill(idx.astype(str), 4))
+        return np.char.add("s", np.char.zfill(idx.astype(str), 4)), np.zeros(n, dtype=bool)
+    if sh["method"] == "healpix":
+        from astropy import units as u
+        from astropy_healpix import HEALPix
+
+        if "ra_deg" not in table or "dec_deg" not in table:
+            raise ConfigError("shards.method: healpix needs ra and dec in catalogue.columns")
+        ra = table["ra_deg"].to_numpy(dtype=float)
+        dec = table["dec_deg"].to_numpy(dtype=float)
+        ok = np.isfinite(ra) & np.isfinite(dec)
+        pix = np.zeros(n, dtype=np.int64)
+        if ok.any():
+            hp = HEALPix(nside=int(sh["healpix_nside"]), order="nested")
+            pix[ok] = hp.lonlat_to_healpix(ra[ok] * u.deg, dec[ok] * u.deg)
+        return np.char.add("p", np.char.zfill(pix.astype(str), 6)), ~ok
     raise ConfigError(f"shards.method: unknown method {sh['method']!r}")
-
-
-def shard_rejects(rejects, settings):
-    """Shard names for rejected rows, by the same rule as :func:`shard_labels`."""
-    return shard_labels(rejects.rename(columns={"input_row": C.ROW}), settings) if len(rejects) else np.array([], str)
