@@ -17,6 +17,8 @@ rule cooling:
         table=f"{R}/cooling/{{shard}}.parquet",
     log:
         f"{R}/logs/cooling/{{shard}}.log",
+    benchmark:
+        f"{R}/benchmarks/cooling/{{shard}}.tsv",
     params:
         settings=settings("cooling"),
     threads: 1

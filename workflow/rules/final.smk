@@ -16,6 +16,8 @@ rule final:
         counts=f"{R}/final/stage_counts.json",
     log:
         f"{R}/logs/final/white_dwarfs.log",
+    benchmark:
+        f"{R}/benchmarks/final.tsv",
     params:
         settings={},
     threads: 1

@@ -10,6 +10,8 @@ checkpoint ingest:
         rejects=f"{R}/ingest/rejects.parquet",
     log:
         f"{R}/logs/ingest/manifest.log",
+    benchmark:
+        f"{R}/benchmarks/ingest.tsv",
     params:
         settings=settings("ingest"),
         shard_dir=f"{R}/ingest/shards",

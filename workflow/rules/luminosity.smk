@@ -10,6 +10,8 @@ rule luminosity:
         rejects=f"{R}/luminosity/{{shard}}.rejects.parquet",
     log:
         f"{R}/logs/luminosity/{{shard}}.log",
+    benchmark:
+        f"{R}/benchmarks/luminosity/{{shard}}.tsv",
     params:
         settings=settings("luminosity"),
     threads: 1

@@ -9,6 +9,8 @@ rule mass:
         table=f"{R}/mass/{{shard}}.parquet",
     log:
         f"{R}/logs/mass/{{shard}}.log",
+    benchmark:
+        f"{R}/benchmarks/mass/{{shard}}.tsv",
     params:
         settings=settings("mass"),
     threads: 1

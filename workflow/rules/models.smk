@@ -21,6 +21,8 @@ rule photometry_model:
         f"{R}/models/photometry.parquet",
     log:
         f"{R}/logs/models/photometry.log",
+    benchmark:
+        f"{R}/benchmarks/models/photometry.tsv",
     params:
         settings=settings("photometry_model"),
     threads: 1
@@ -33,6 +35,8 @@ rule mass_radius_model:
         f"{R}/models/mass_radius.parquet",
     log:
         f"{R}/logs/models/mass_radius.log",
+    benchmark:
+        f"{R}/benchmarks/models/mass_radius.tsv",
     params:
         settings=settings("mass_radius_model"),
     threads: 1
@@ -47,6 +51,8 @@ rule cooling_model:
         f"{R}/models/cooling_{{which}}.parquet",
     log:
         f"{R}/logs/models/cooling_{{which}}.log",
+    benchmark:
+        f"{R}/benchmarks/models/cooling_{{which}}.tsv",
     params:
         settings=settings("cooling_model"),
     wildcard_constraints:

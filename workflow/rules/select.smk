@@ -9,6 +9,8 @@ rule select:
         rejects=f"{R}/select/{{shard}}.rejects.parquet",
     log:
         f"{R}/logs/select/{{shard}}.log",
+    benchmark:
+        f"{R}/benchmarks/select/{{shard}}.tsv",
     params:
         settings=settings("select"),
     threads: 1

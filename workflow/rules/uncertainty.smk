@@ -10,6 +10,8 @@ rule uncertainty:
         table=f"{R}/uncertainty/{{shard}}.parquet",
     log:
         f"{R}/logs/uncertainty/{{shard}}.log",
+    benchmark:
+        f"{R}/benchmarks/uncertainty/{{shard}}.tsv",
     params:
         settings=settings("uncertainty"),
     threads: 1
