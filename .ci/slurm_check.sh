@@ -67,7 +67,21 @@ stop_pidfile() {
 }
 
 stop_cluster() {
-  # Jobs left over by an interrupted run first, while slurmctld can still cancel them.
+  # A workflow run still going (this run interrupted, or one left by a killed run) gets SIGINT,
+  # on which Snakemake cancels its SLURM jobs; `timeout -k` below bounds how long it may take.
+  local pid i
+  if [ -s "$STATE/workflow.pid" ]; then
+    pid=$(cat "$STATE/workflow.pid")
+    if [ "$(cat "/proc/$pid/comm" 2>/dev/null)" = timeout ]; then
+      say "interrupting the workflow run (PID $pid)"
+      kill -INT "$pid" 2>/dev/null || true
+      for i in $(seq 450); do
+        [ -e "/proc/$pid" ] || break
+        sleep 0.2
+      done
+    fi
+  fi
+  # Jobs still known to slurmctld next, while it can cancel them.
   if [ -s "$STATE/slurmctld.pid" ] && command -v scancel >/dev/null; then
     SLURM_CONF=$STATE/slurm.conf timeout 10 scancel --quiet --user=root 2>/dev/null || true
   fi
@@ -231,8 +245,11 @@ timeout -s INT -k 60 "$TIME_LIMIT" "$PY" -m snakemake \
   --slurm-init-seconds-before-status-checks "$STATUS_DELAY" \
   --slurm-no-account \
   --slurm-keep-successful-logs \
-  > "$STATE/snakemake.log" 2>&1
+  > "$STATE/snakemake.log" 2>&1 &
+echo $! > "$STATE/workflow.pid"
+wait $!
 SMK_RC=$?
+rm -f "$STATE/workflow.pid"
 set -e
 grep -E '^(Submitted|Job [0-9]+ has been submitted|Finished jobid|localrule|.*steps \(.*\) done)' \
   "$STATE/snakemake.log" | sed 's/^/  /' || true
@@ -245,7 +262,7 @@ say "snakemake finished (status 0)"
 
 # --- 5. checks -----------------------------------------------------------------------------------
 section "5. SLURM's job list"
-squeue -t all -h -o '%i|%k|%T|%M|%l|%C|%m|%N' > "$STATE/squeue.txt"
+squeue -t all -h -o '%i|%k|%T|%S|%M|%l|%C|%m|%N' > "$STATE/squeue.txt"
 "$PY" - "$STATE/squeue.txt" "$STATE/log/jobcomp.txt" "$STATE/snakemake.log" <<'PY'
 """Print SLURM's job table and compare it with the jobs Snakemake says it ran."""
 import collections
@@ -268,13 +285,13 @@ except FileNotFoundError:
 rows = []
 with open(squeue_path) as fh:
     for line in fh:
-        jobid, comment, state, elapsed, limit, cpus, mem, node = line.rstrip("\n").split("|")
+        jobid, comment, state, start, elapsed, limit, cpus, mem, node = line.rstrip("\n").split("|")
         m = re.match(r"rule_(\w+?)(?:_wildcards_(.*))?$", comment)
         rule, wildcards = (m.group(1), m.group(2) or "") if m else (comment, "")
-        rows.append((int(jobid), rule, wildcards, state, elapsed, limit, cpus, mem, node,
+        rows.append((int(jobid), rule, wildcards, state, start.split("T")[-1], elapsed, limit, cpus, mem, node,
                      exit_codes.get(jobid, "?")))
 rows.sort()
-header = ("JOBID", "RULE", "WILDCARDS", "STATE", "ELAPSED", "TIMELIMIT", "CPUS", "MEM", "NODE", "EXIT")
+header = ("JOBID", "RULE", "WILDCARDS", "STATE", "START", "ELAPSED", "TIMELIMIT", "CPUS", "MEM", "NODE", "EXIT")
 widths = [max(len(str(r[i])) for r in rows + [header]) for i in range(len(header))]
 for r in [header] + rows:
     print("  " + "  ".join(str(v).ljust(w) for v, w in zip(r, widths)))
@@ -283,8 +300,8 @@ problems = []
 if not rows:
     problems.append("SLURM lists no job at all: the workflow did not run through SLURM")
 for r in rows:
-    if r[3] != "COMPLETED" or r[9] not in ("0:0", "?"):
-        problems.append(f"SLURM job {r[0]} ({r[1]}) ended {r[3]}, exit code {r[9]}")
+    if r[3] != "COMPLETED" or r[-1] not in ("0:0", "?"):
+        problems.append(f"SLURM job {r[0]} ({r[1]}) ended {r[3]}, exit code {r[-1]}")
 
 # Jobs Snakemake ran: "Finished jobid: N (Rule: name)"; local ones are announced as "localrule".
 with open(log_path) as fh:
