@@ -15,7 +15,7 @@
 #                              workflow's working folder (wiped at start; left for inspection)
 #                              [/tmp/cinderclock-slurm-check]
 #   CINDERCLOCK_SLURM_TIMEOUT  seconds the workflow may run before it is interrupted (SIGINT) [420]
-#   PYTHON                     Python interpreter with cinderclock's dependencies [python3]
+#   CINDERCLOCK_PYTHON         Python interpreter with cinderclock's dependencies [python3]
 #
 # The cluster (facts of Debian 12's SLURM 22.05 on a machine without cgroups or systemd):
 # daemons run as root with ProctrackType=proctrack/linuxproc and TaskPlugin=task/none; the node is
@@ -28,7 +28,7 @@ set -euo pipefail
 ROOT=$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)
 STATE=${CINDERCLOCK_SLURM_STATE:-/tmp/cinderclock-slurm-check}
 TIME_LIMIT=${CINDERCLOCK_SLURM_TIMEOUT:-420}
-PY=${PYTHON:-python3}
+PY=${CINDERCLOCK_PYTHON:-python3}
 WORK=$STATE/work
 MARKER="# cinderclock slurm_check.sh: one-node loopback cluster"
 CTLD_PORT=6917                   # not SLURM's default 6817/6818: stays clear of a system cluster
@@ -45,22 +45,28 @@ section() { printf '\n==== %s\n' "$*"; }
 
 # --- stopping daemons by PID -------------------------------------------------------------------
 
-# stop_pidfile FILE NAME: stop the process in FILE if it is alive and its command is NAME.
+# ours PID NAME: true when process PID is NAME and was started with a path under $STATE
+# (guards against a PID that the system has since given to another process).
+ours() {
+  [[ "$1" =~ ^[0-9]+$ ]] && [ "$(cat "/proc/$1/comm" 2>/dev/null)" = "$2" ] \
+    && tr '\0' ' ' < "/proc/$1/cmdline" 2>/dev/null | grep -qF "$STATE"
+}
+
+# stop_pidfile FILE NAME [SIGNAL] [SECONDS]: send SIGNAL (TERM) to the process in FILE if it is
+# ours, wait up to SECONDS (10) for it to end, then SIGKILL it; remove FILE.
 stop_pidfile() {
-  local file=$1 name=$2 pid i
+  local file=$1 name=$2 sig=${3:-TERM} wait_s=${4:-10} pid
   [ -s "$file" ] || return 0
   pid=$(cat "$file")
-  [[ "$pid" =~ ^[0-9]+$ ]] || return 0
-  if [ "$(cat "/proc/$pid/comm" 2>/dev/null)" != "$name" ]; then
-    return 0                     # gone, or the PID now belongs to someone else
-  fi
-  kill -TERM "$pid" 2>/dev/null || true
-  for i in $(seq 50); do
+  rm -f "$file"
+  ours "$pid" "$name" || return 0
+  kill "-$sig" "$pid" 2>/dev/null || true
+  for _ in $(seq $((wait_s * 5))); do
     [ -e "/proc/$pid" ] || break
     sleep 0.2
   done
   if [ -e "/proc/$pid" ]; then
-    say "$name (PID $pid) still running after 10 s: SIGKILL"
+    say "$name (PID $pid) still running after $wait_s s: SIGKILL"
     kill -KILL "$pid" 2>/dev/null || true
   fi
   say "stopped $name (PID $pid)"
@@ -68,21 +74,10 @@ stop_pidfile() {
 
 stop_cluster() {
   # A workflow run still going (this run interrupted, or one left by a killed run) gets SIGINT,
-  # on which Snakemake cancels its SLURM jobs; `timeout -k` below bounds how long it may take.
-  local pid i
-  if [ -s "$STATE/workflow.pid" ]; then
-    pid=$(cat "$STATE/workflow.pid")
-    if [ "$(cat "/proc/$pid/comm" 2>/dev/null)" = timeout ]; then
-      say "interrupting the workflow run (PID $pid)"
-      kill -INT "$pid" 2>/dev/null || true
-      for i in $(seq 450); do
-        [ -e "/proc/$pid" ] || break
-        sleep 0.2
-      done
-    fi
-  fi
+  # on which Snakemake cancels its SLURM jobs (`timeout -k 60` below bounds how long it takes).
+  stop_pidfile "$STATE/workflow.pid" timeout INT 90
   # Jobs still known to slurmctld next, while it can cancel them.
-  if [ -s "$STATE/slurmctld.pid" ] && command -v scancel >/dev/null; then
+  if [ -s "$STATE/slurmctld.pid" ] && ours "$(cat "$STATE/slurmctld.pid")" slurmctld; then
     SLURM_CONF=$STATE/slurm.conf timeout 10 scancel --quiet --user=root 2>/dev/null || true
   fi
   stop_pidfile "$STATE/slurmd.pid" slurmd
@@ -212,7 +207,7 @@ munge -n -S "$STATE/munge/munge.socket" | unmunge -S "$STATE/munge/munge.socket"
 say "munged running (PID $(cat "$STATE/munge/munged.pid"))"
 
 slurmctld -c -f "$SLURM_CONF" || die "slurmctld did not start (see $STATE/log/slurmctld.log)"
-for i in $(seq 30); do
+for _ in $(seq 30); do
   scontrol ping 2>/dev/null | grep -q UP && break
   sleep 1
 done
@@ -220,7 +215,7 @@ scontrol ping | grep -q UP || { tail -n 20 "$STATE/log/slurmctld.log" >&2; die "
 say "slurmctld running (PID $(cat "$STATE/slurmctld.pid"))"
 
 slurmd -f "$SLURM_CONF" || die "slurmd did not start (see $STATE/log/slurmd.log)"
-for i in $(seq 30); do
+for _ in $(seq 30); do
   [ "$(sinfo -h -n "$NODE" -o %T 2>/dev/null)" = idle ] && break
   sleep 1
 done
@@ -249,7 +244,6 @@ timeout -s INT -k 60 "$TIME_LIMIT" "$PY" -m snakemake \
 echo $! > "$STATE/workflow.pid"
 wait $!
 SMK_RC=$?
-rm -f "$STATE/workflow.pid"
 set -e
 grep -E '^(Submitted|Job [0-9]+ has been submitted|Finished jobid|localrule|.*steps \(.*\) done)' \
   "$STATE/snakemake.log" | sed 's/^/  /' || true
@@ -263,7 +257,8 @@ say "snakemake finished (status 0)"
 # --- 5. checks -----------------------------------------------------------------------------------
 section "5. SLURM's job list"
 squeue -t all -h -o '%i|%k|%T|%S|%M|%l|%C|%m|%N' > "$STATE/squeue.txt"
-"$PY" - "$STATE/squeue.txt" "$STATE/log/jobcomp.txt" "$STATE/snakemake.log" <<'PY'
+"$PY" - "$STATE/squeue.txt" "$STATE/log/jobcomp.txt" "$STATE/snakemake.log" <<'PY' \
+  || die "the workflow's jobs did not all run and complete in SLURM (see PROBLEM lines above)"
 """Print SLURM's job table and compare it with the jobs Snakemake says it ran."""
 import collections
 import re
@@ -333,7 +328,7 @@ for f in final/white_dwarfs.parquet final/rejects.parquet final/stage_counts.jso
   [ -s "$RESULTS/$f" ] || die "missing output $RESULTS/$f"
   say "found $f ($(stat -c %s "$RESULTS/$f") bytes)"
 done
-"$PY" - "$RESULTS/final/stage_counts.json" <<'PY'
+"$PY" - "$RESULTS/final/stage_counts.json" <<'PY' || die "stage_counts.json does not add up"
 """Row conservation as recorded by the final stage."""
 import json
 import sys
