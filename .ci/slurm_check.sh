@@ -42,6 +42,7 @@ die() { say "FAIL: $*" >&2; exit 1; }
 section() { printf '\n==== %s\n' "$*"; }
 
 [ "$(id -u)" -eq 0 ] || die "must run as root (installs packages, starts the SLURM daemons)"
+[[ "$STATE" == /?*/?* ]] || die "CINDERCLOCK_SLURM_STATE must be an absolute path below a folder (it is wiped)"
 
 # --- stopping daemons by PID -------------------------------------------------------------------
 
