@@ -32,6 +32,7 @@ REASONS = {
     # luminosity
     "no_temperature": "No spectroscopic Teff and not enough bands to estimate one",
     "temperature_out_of_range": "The estimated Teff lies outside the model photometry table",
+    "gravity_out_of_range": "log g (spectroscopic or default) outside the user synthetic-photometry table",
     "extinction_out_of_range": "E(B-V) exceeds the largest value of the model photometry table",
 }
 

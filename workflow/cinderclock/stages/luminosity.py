@@ -125,6 +125,10 @@ def luminosity(table, settings, grid):
     teff_spec_err = out["teff_spec_err_k"].to_numpy(float) if "teff_spec_err_k" in out else np.full(n, np.nan)
     logg = out["logg_spec"].to_numpy(float) if "logg_spec" in out else np.full(n, np.nan)
     logg = np.where(np.isfinite(logg), logg, lum["default_logg"])
+    if grid.gravity_dependent:
+        rj.reject((logg < grid.logg[0]) | (logg > grid.logg[-1]), "gravity_out_of_range",
+                  lambda i: [f"log g = {g:.2f} outside the table's {grid.logg[0]:.2f}-{grid.logg[-1]:.2f}"
+                             for g in logg[i]])
     fit = fit_sed(mags, errs, grid, ebv=ebv, distance_pc=d["distance_pc"], distance_lo_pc=d["distance_lo_pc"],
                   distance_hi_pc=d["distance_hi_pc"], logg=logg if grid.gravity_dependent else None,
                   teff_fixed_k=teff_spec, teff_fixed_err_k=teff_spec_err,
