@@ -143,8 +143,12 @@ def _read_astropy(path, wanted, fmt):
             warnings.simplefilter("ignore")
             table = Table.read(path, format=kind)
     except Exception as exc:
+        hint = ""
+        if fmt == "fits" and Path(path).stat().st_size % 2880:
+            hint = f"; its size ({Path(path).stat().st_size} bytes) is not a multiple of 2880, so it is probably truncated"
         raise InputError(f"not a readable {fmt.upper() if fmt != 'votable' else 'VOTable'} file "
-                         f"({exc.__class__.__name__}: {str(exc).splitlines()[0] if str(exc) else ''})", path) from None
+                         f"({exc.__class__.__name__}: {str(exc).splitlines()[0] if str(exc) else ''}){hint}",
+                         path) from None
     _check_columns(path, table.colnames, wanted)
     units = {c: str(table[c].unit) for c in wanted if getattr(table[c], "unit", None) is not None}
     cols = {}

@@ -8,7 +8,8 @@ Every table cinderclock writes carries
 
 Writes are atomic: the table goes to a temporary file in the same folder and is renamed over the
 target only when complete, so a run killed mid-write never leaves a partial file behind that a
-later stage would accept.
+later stage would accept. The temporary is named ``.<name>.partial-<pid>``: no stage reads such a
+name, and the next write of the same target deletes any left by a killed writer.
 """
 
 from __future__ import annotations
@@ -45,6 +46,16 @@ class Column:
 def column_specs_from_json(data):
     """Rebuild ``{name: Column}`` from its JSON form."""
     return {name: Column(**spec) for name, spec in data.items()}
+
+
+def _remove_stale_partials(path):
+    """Delete temporaries of ``path`` left behind by a writer that was killed (kill -9, power loss)."""
+    import glob
+
+    own = f".{path.name}.partial-{os.getpid()}"
+    for stale in path.parent.glob(f".{glob.escape(path.name)}.partial-*"):
+        if stale.name != own:
+            stale.unlink(missing_ok=True)
 
 
 def write_table(df, path, columns, provenance, *, stage=None):
@@ -90,6 +101,7 @@ def write_table(df, path, columns, provenance, *, stage=None):
     table = table.cast(schema)
     path = Path(path)
     path.parent.mkdir(parents=True, exist_ok=True)
+    _remove_stale_partials(path)
     tmp = path.with_name(f".{path.name}.partial-{os.getpid()}")
     try:
         pq.write_table(table, tmp, compression="zstd")
@@ -164,6 +176,7 @@ class StreamingTableWriter:
 
     def __enter__(self):
         self.path.parent.mkdir(parents=True, exist_ok=True)
+        _remove_stale_partials(self.path)
         return self
 
     def _schema_for(self, df):
