@@ -156,10 +156,18 @@ def workdir(base, catalogue):
     return base
 
 
+HANDOFF = ["results/final/white_dwarfs.fits", "results/final/white_dwarfs.vot", "results/final/data_dictionary.md"]
+
+
 @pytest.fixture(scope="module")
 def reference_run(tmp_path_factory, catalogue):
+    """An uninterrupted run; its Snakefile also includes the hand-off rule, as the maintainer will."""
     wd = workdir(tmp_path_factory.mktemp("uninterrupted"), catalogue)
-    out = snakemake(wd)
+    (wd / "Snakefile").write_text(f'include: "{ROOT / "Snakefile"}"\n'
+                                  f'include: "{ROOT / "workflow/rules/handoff.smk"}"\n')
+    cmd = [sys.executable, "-m", "snakemake", "-s", str(wd / "Snakefile"), "-d", str(wd), "--cores", "1", "all",
+           *HANDOFF]
+    out = subprocess.run(cmd, capture_output=True, text=True, timeout=600, env=ENV)
     assert out.returncode == 0, out.stderr[-3000:]
     return wd
 
@@ -180,6 +188,8 @@ def check_results_folder(results):
             assert all((f.metadata or {}).get(b"description") for f in table.schema), rel
         elif path.suffix == ".json":
             json.loads(path.read_text())
+        elif path.parent.name == "final" and path.suffix in (".fits", ".vot", ".md"):
+            pass                                                     # hand-off files, checked on their own
         else:
             raise AssertionError(f"unexpected file {rel}")
     return temporaries
@@ -236,3 +246,28 @@ def test_killed_run_leaves_no_partial_table_and_rerun_matches(tmp_path, catalogu
         assert column_digests(ref / rel) == column_digests(new / rel), rel
         assert read_metadata(ref / rel) == read_metadata(new / rel), rel   # provenance too: no timestamps
     assert (ref / "final/stage_counts.json").read_text() == (new / "final/stage_counts.json").read_text()
+
+
+@pytest.mark.slow
+def test_every_table_of_a_run_describes_itself_and_hands_off(reference_run, capsys):
+    from cinderclock import SCHEMA_VERSION
+    from cinderclock.cli import main
+    from cinderclock.datadict import describe
+
+    results = reference_run / "results"
+    assert check_results_folder(results) == []                    # every table complete, no temporaries
+    for path in results.rglob("*.parquet"):
+        assert read_metadata(path)["schema_version"] == SCHEMA_VERSION, path
+    final = results / "final" / "white_dwarfs.parquet"
+    n = pq.ParquetFile(final).metadata.num_rows
+    fits = describe(results / "final" / "white_dwarfs.fits")
+    assert fits.n_rows == n and fits.provenance == read_metadata(final)["provenance"]
+    assert fits.meta["exported_from"]["file"] == "white_dwarfs.parquet"
+    tail = (results / "final" / "white_dwarfs.vot").read_bytes()[-200_000:].decode("utf-8", "replace")
+    assert 'name="schema_version" value="1.0"' in tail and 'name="cinderclock"' in tail   # INFOs after DATA
+    md = (results / "final" / "data_dictionary.md").read_text()
+    for name in pq.read_schema(final).names:
+        assert f"| `{name}` |" in md, name
+    assert main(["cite", str(final)]) == 0
+    cited = capsys.readouterr().out
+    assert "Mestel, L. 1952, MNRAS 112, 583" in cited and "Riello, M. et al. 2021, A&A 649, A3" in cited

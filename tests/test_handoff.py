@@ -163,6 +163,8 @@ def test_log_units_use_each_formats_own_notation(exports):
         warnings.simplefilter("ignore")
         vot = parse(str(exports["votable"]))
     assert vot.version == "1.3"
+    ids = re.findall(r'\bID="([^"]+)"', exports["votable"].read_text(errors="replace"))
+    assert len(ids) == len(set(ids))                                  # XML IDs are unique
     raw = exports["votable"].read_text(errors="replace")
     for name, unit in (("logg", "dex(cm / s2)"), ("log_lum", "dex(solLum)"), ("logg_spec_err", "dex")):
         assert re.search(rf'name="{name}"[^>]*unit="{re.escape(astropy_unit(unit).to_string("cds"))}"', raw), name

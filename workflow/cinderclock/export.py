@@ -304,8 +304,8 @@ def _write_votable(table, block, tmp):
                            f"{block.get('schema_version')}); provenance in INFO '{VOT_META_INFO}'")
     element.infos.append(Info(name=VOT_SCHEMA_INFO, value=str(block.get("schema_version", ""))))
     element.infos.append(Info(name=VOT_META_INFO, value=json.dumps(block, sort_keys=True)))
-    for ref in references(block.get("provenance", {})):
-        element.infos.append(Info(name=VOT_REFERENCE_INFO, value=ref))
+    for i, ref in enumerate(references(block.get("provenance", {})), start=1):
+        element.infos.append(Info(ID=f"{VOT_REFERENCE_INFO}_{i}", name=VOT_REFERENCE_INFO, value=ref))
     resource.tables.append(element)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
