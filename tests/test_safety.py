@@ -23,7 +23,8 @@ from cinderclock.config import check_references, check_results_dir, load_config
 from cinderclock.errors import ConfigError
 
 ROOT = Path(__file__).resolve().parents[1]
-PYTHON_FILES = sorted([*(ROOT / "workflow" / "cinderclock").rglob("*.py"), *(ROOT / "workflow" / "scripts").glob("*.py"),
+PYTHON_FILES = sorted([*(ROOT / "workflow" / "cinderclock").rglob("*.py"),
+                       *(ROOT / "workflow" / "scripts").glob("*.py"),
                        *(ROOT / "sample_catalog").glob("*.py"), *(ROOT / "benchmarks").glob("*.py")])
 RULE_FILES = sorted([ROOT / "Snakefile", *(ROOT / "workflow" / "rules").glob("*.smk")])
 
@@ -53,7 +54,8 @@ def violations(source, name="<snippet>"):
             if node.attr not in ("system", "popen") or (isinstance(node.value, ast.Name) and node.value.id == "os"):
                 found.append((node.lineno, f".{node.attr}"))
         elif isinstance(node, ast.Import):
-            found += [(node.lineno, f"import {a.name}") for a in node.names if a.name.split(".")[0] in FORBIDDEN_MODULES]
+            found += [(node.lineno, f"import {a.name}") for a in node.names
+                      if a.name.split(".")[0] in FORBIDDEN_MODULES]
         elif isinstance(node, ast.ImportFrom) and (node.module or "").split(".")[0] in FORBIDDEN_MODULES:
             found.append((node.lineno, f"from {node.module} import"))
     return found

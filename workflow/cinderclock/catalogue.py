@@ -143,9 +143,9 @@ def _read_astropy(path, wanted, fmt):
             warnings.simplefilter("ignore")
             table = Table.read(path, format=kind)
     except Exception as exc:
-        hint = ""
-        if fmt == "fits" and Path(path).stat().st_size % 2880:
-            hint = f"; its size ({Path(path).stat().st_size} bytes) is not a multiple of 2880, so it is probably truncated"
+        hint, size = "", Path(path).stat().st_size
+        if fmt == "fits" and size % 2880:           # FITS files are whole 2880-byte blocks
+            hint = f"; its size ({size} bytes) is not a multiple of 2880, so it is probably truncated"
         raise InputError(f"not a readable {fmt.upper() if fmt != 'votable' else 'VOTable'} file "
                          f"({exc.__class__.__name__}: {str(exc).splitlines()[0] if str(exc) else ''}){hint}",
                          path) from None

@@ -116,7 +116,8 @@ def _describe_parquet(path):
     for f in schema:
         md = {k.decode(): v.decode() for k, v in (f.metadata or {}).items()}
         spec = specs.get(f.name, {})
-        columns[f.name] = Column(md.get("unit", spec.get("unit", "")), md.get("description", spec.get("description", "")),
+        columns[f.name] = Column(md.get("unit", spec.get("unit", "")),
+                                 md.get("description", spec.get("description", "")),
                                  md.get("ucd", spec.get("ucd", "")))
         dtypes[f.name] = str(f.type)
     return TableDescription(str(path), "parquet", n_rows, columns, dtypes, meta)

@@ -210,6 +210,14 @@ def atomic_write(out, write):
     return out
 
 
+def _try_format(unit, fmt):
+    """``unit`` written in format ``fmt``, or None if astropy cannot write it there."""
+    try:
+        return unit.to_string(fmt)
+    except ValueError:
+        return None
+
+
 def _write_fits(table, block, tmp):
     from astropy.io import fits
 
@@ -217,12 +225,9 @@ def _write_fits(table, block, tmp):
     t.meta.clear()
     fits_units = {}
     for col in t.itercols():
-        text = "" if col.unit is None else col.unit.to_string()
-        fits_units[col.name] = unit_string(text, "fits")
-        try:
-            col.unit.to_string("fits") if col.unit is not None else None
-        except ValueError:
-            col.unit = None             # written below in FITS-standard notation instead
+        fits_units[col.name] = unit_string("" if col.unit is None else col.unit.to_string(), "fits")
+        if col.unit is not None and fits_units[col.name] != _try_format(col.unit, "fits"):
+            col.unit = None             # astropy cannot write it; set below in the FITS standard's notation
     t.meta[FITS_SCHEMA_KEY] = str(block.get("schema_version", ""))
     t.meta[FITS_STAGE_KEY] = str(block.get("stage") or "")
     t.meta[FITS_META_KEY] = json.dumps(block, sort_keys=True)
@@ -244,8 +249,9 @@ def binary2_stream(table):
 
     Follows the layout astropy writes (VOTable 1.3, section 5.5): per row, the null-flag bits
     (most significant bit first) then every field big-endian, masked entries holding whatever
-    lies under the mask; fixed-size ``char`` fields padded with NUL bytes, ``unicodeChar`` as UCS-2. Returns None when a column has a type this fast path
-    does not cover (booleans, arrays, non-BMP text); the caller then lets astropy write the rows.
+    lies under the mask; fixed-size ``char`` fields padded with NUL bytes, ``unicodeChar`` as
+    UCS-2. Returns None when a column has a type this fast path does not cover (booleans, arrays,
+    non-BMP text); the caller then lets astropy write the rows (slowly: a Python loop per row).
     """
     import numpy as np
 
