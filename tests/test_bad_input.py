@@ -229,6 +229,13 @@ def test_parallaxes_in_arcsec_with_the_unit_configured_are_converted(tmp_path, c
     assert np.allclose(table["plx_mas"], df["plx"] * 1000.0, rtol=1e-12)
 
 
+def test_an_unknown_unit_in_the_configuration_names_column_and_unit(tmp_path, config):
+    config["catalogue"]["units"]["parallax"] = "milliarcsecs"
+    with pytest.raises(InputError) as err:
+        ingest_file(tmp_path, frame(), config)
+    one_line(err.value, str(tmp_path / "cat.csv"), "column 'plx'", "unknown unit 'milliarcsecs'")
+
+
 def test_file_declaring_mas_for_arcsec_values_is_caught(tmp_path, config):
     from astropy import units as u
     from astropy.table import Table
