@@ -14,9 +14,11 @@ include: "workflow/rules/mass.smk"
 include: "workflow/rules/cooling.smk"
 include: "workflow/rules/uncertainty.smk"
 include: "workflow/rules/final.smk"
+include: "workflow/rules/handoff.smk"
 
 
 rule all:
     default_target: True
     input:
         rules.final.output,
+        rules.handoff.output,

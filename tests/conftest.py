@@ -3,11 +3,17 @@
 from __future__ import annotations
 
 import copy
+import os
 from pathlib import Path
 
 import pytest
 
 ROOT = Path(__file__).resolve().parents[1]
+
+# Workflow runs started by the tests (snakemake subprocesses) import this checkout's package, even
+# where an editable install points at another copy.
+os.environ["PYTHONPATH"] = os.pathsep.join([str(ROOT / "workflow")] +
+                                           [p for p in os.environ.get("PYTHONPATH", "").split(os.pathsep) if p])
 
 
 @pytest.fixture(scope="session")

@@ -7,7 +7,7 @@ import pytest
 from cinderclock.catalogue import read_catalogue
 from cinderclock.config import stage_settings
 from cinderclock.errors import InputError
-from cinderclock.stages.ingest import ingest, load_and_ingest, wanted_columns
+from cinderclock.stages.ingest import load_and_ingest, wanted_columns
 
 
 def _frame(n=6):

@@ -2,7 +2,6 @@
 
 import numpy as np
 import pandas as pd
-import pytest
 
 from cinderclock.config import stage_settings
 from cinderclock.stages.select import points_in_polygon, select

@@ -1,8 +1,6 @@
 """Self-describing Parquet: metadata round trip and atomic writes (internal checks)."""
 
-import json
 
-import numpy as np
 import pandas as pd
 import pyarrow.parquet as pq
 import pytest

@@ -80,8 +80,12 @@ def _read_astropy(path, wanted, fmt):
             warnings.simplefilter("ignore")
             table = Table.read(path, format=kind)
     except Exception as exc:
+        hint, size = "", Path(path).stat().st_size
+        if fmt == "fits" and size % 2880:           # FITS files are whole 2880-byte blocks
+            hint = f"; its size ({size} bytes) is not a multiple of 2880, so it is probably truncated"
         raise InputError(f"not a readable {fmt.upper() if fmt != 'votable' else 'VOTable'} file "
-                         f"({exc.__class__.__name__}: {str(exc).splitlines()[0] if str(exc) else ''})", path) from None
+                         f"({exc.__class__.__name__}: {str(exc).splitlines()[0] if str(exc) else ''}){hint}",
+                         path) from None
     _check_columns(path, table.colnames, wanted)
     units = {c: str(table[c].unit) for c in wanted if getattr(table[c], "unit", None) is not None}
     cols = {}

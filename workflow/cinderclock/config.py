@@ -104,6 +104,73 @@ def check_results_dir(config):
                           "directory (no '..', not absolute)")
 
 
+def _speclite_passbands():
+    """Names of the passband curves speclite ships, found without importing speclite (cheap).
+
+    Mirrors :func:`cinderclock.photometry.passbands.available_passbands`; returns None when the
+    curves cannot be located (the photometry stage then reports an unknown band itself).
+    """
+    from importlib.util import find_spec
+
+    spec = find_spec("speclite")
+    folders = list(spec.submodule_search_locations or []) if spec else []
+    for folder in folders:
+        curves = Path(folder) / "data" / "filters"
+        if curves.is_dir():
+            return sorted(p.name[:-5] for p in curves.iterdir() if p.name.endswith(".ecsv"))
+    return None
+
+
+def _vega_passbands():
+    """Passbands with published Vega zero points (first field of ``data/vega_zero_points.csv``)."""
+    text = (Path(__file__).resolve().parent / "data" / "vega_zero_points.csv").read_text()
+    return sorted(line.split(",")[0] for line in text.splitlines() if line.strip() and not line.startswith("#"))
+
+
+def check_references(config):
+    """Checks the schema cannot express: passband names, and band and column names used across sections.
+
+    Raises
+    ------
+    ConfigError
+        One line naming the key, the offending value and the allowed values.
+    """
+    bands = config.get("bands", {})
+    known = _speclite_passbands()
+    vega = _vega_passbands()
+    for key, band in bands.items():
+        name = band["passband"]
+        if known is not None and name not in known:
+            close = [k for k in known if k.split("-")[0] == name.split("-")[0]] or known[:12]
+            raise ConfigError(f"config key 'bands.{key}.passband': unknown passband {name!r}; known passbands "
+                              f"include: {', '.join(close)}")
+        if band["system"] == "vega" and name not in vega:
+            raise ConfigError(f"config key 'bands.{key}.system': no published Vega zero point for {name!r}; use "
+                              f"'ab' or one of: {', '.join(vega)}")
+    allowed = ", ".join(bands)
+    lum = config.get("luminosity", {})
+    uses = [("luminosity.bolometric_band", lum.get("bolometric_band"))]
+    uses += [("luminosity.teff_colour", b) for b in lum.get("teff_colour", [])]
+    sel = config.get("select", {}) or {}
+    uses += [("select.max_mag_error", b) for b in (sel.get("max_mag_error") or {})]
+    region = sel.get("wd_region") or {}
+    uses += [("select.wd_region.colour", b) for b in region.get("colour", [])]
+    if region:
+        uses.append(("select.wd_region.magnitude", region.get("magnitude")))
+    for key, band in uses:
+        if band is not None and band not in bands:
+            raise ConfigError(f"config key '{key}': band {band!r} is not configured; configured bands: {allowed}")
+    from .columns import INPUT_QUANTITIES, mag_column, mag_err_column
+
+    cat = config.get("catalogue", {})
+    columns = set(cat.get("keep_columns", [])) | {INPUT_QUANTITIES[q].column for q in cat.get("columns", {})}
+    columns |= {f(b) for b in bands for f in (mag_column, mag_err_column)}
+    for cut in sel.get("quality_cuts") or []:
+        if cut["column"] not in columns:
+            raise ConfigError(f"config key 'select.quality_cuts': column {cut['column']!r} is not available; list "
+                              f"it in catalogue.keep_columns (available: {', '.join(sorted(columns))})")
+
+
 def check_config(config):
     """Validate a configuration for the workflow; on a fault print one line and stop.
 
@@ -114,6 +181,7 @@ def check_config(config):
     try:
         validate(config)
         check_results_dir(config)
+        check_references(config)
     except ConfigError as exc:
         sys.stderr.write(f"cinderclock: configuration error: {exc}\n")
         raise SystemExit(1) from None

@@ -6,6 +6,10 @@ from __future__ import annotations
 class CinderclockError(Exception):
     """Base class: a problem the user can fix, reported as one line."""
 
+    def __str__(self):
+        # messages quoted from libraries (pyarrow, astropy) may span lines: keep the report to one
+        return " ".join(super().__str__().split())
+
 
 class InputError(CinderclockError):
     """A fault in an input file, located by file, row and column where that applies.

@@ -8,7 +8,8 @@ Every table cinderclock writes carries
 
 Writes are atomic: the table goes to a temporary file in the same folder and is renamed over the
 target only when complete, so a run killed mid-write never leaves a partial file behind that a
-later stage would accept.
+later stage would accept. The temporary is named ``.<name>.partial-<pid>``: no stage reads such a
+name, and the next write of the same target deletes any left by a killed writer.
 """
 
 from __future__ import annotations
@@ -47,6 +48,61 @@ def column_specs_from_json(data):
     return {name: Column(**spec) for name, spec in data.items()}
 
 
+def _remove_stale_partials(path):
+    """Delete temporaries of ``path`` left behind by a writer that was killed (kill -9, power loss)."""
+    import glob
+
+    own = f".{path.name}.partial-{os.getpid()}"
+    for stale in path.parent.glob(f".{glob.escape(path.name)}.partial-*"):
+        if stale.name != own:
+            stale.unlink(missing_ok=True)
+
+
+def atomic_write(path, write):
+    """Call ``write(tmp)`` on a temporary next to ``path``, flush it to disk, then rename it to ``path``.
+
+    The temporary is ``.<name>.partial-<pid>``; temporaries left by killed writers are removed
+    first. If ``write`` raises, neither the target nor the temporary changes the folder.
+    """
+    path = Path(path)
+    path.parent.mkdir(parents=True, exist_ok=True)
+    _remove_stale_partials(path)
+    tmp = path.with_name(f".{path.name}.partial-{os.getpid()}")
+    try:
+        write(tmp)
+        with open(tmp, "rb") as fh:
+            os.fsync(fh.fileno())
+        os.replace(tmp, path)
+    finally:
+        if tmp.exists():
+            tmp.unlink()
+    return path
+
+
+def write_json(obj, path):
+    """Write a JSON document atomically, with the cinderclock schema version added."""
+    from . import SCHEMA_VERSION
+
+    text = json.dumps({"schema_version": SCHEMA_VERSION, **obj}, indent=1, sort_keys=True)
+    return atomic_write(path, lambda tmp: Path(tmp).write_text(text))
+
+
+def _described_schema(arrow_schema, columns, provenance, stage):
+    """``arrow_schema`` with per-field unit/description/UCD and the ``cinderclock`` metadata block."""
+    import pyarrow as pa
+
+    from . import SCHEMA_VERSION
+
+    fields = []
+    for field in arrow_schema:
+        spec = columns[field.name]
+        fields.append(field.with_metadata({b"unit": spec.unit.encode(), b"description": spec.description.encode(),
+                                           b"ucd": spec.ucd.encode()}))
+    block = {"schema_version": SCHEMA_VERSION, "stage": stage,
+             "columns": {f.name: asdict(columns[f.name]) for f in arrow_schema}, "provenance": provenance}
+    return pa.schema(fields, metadata={META_KEY: json.dumps(block, sort_keys=True).encode()})
+
+
 def write_table(df, path, columns, provenance, *, stage=None):
     """Write ``df`` to Parquet at ``path`` atomically, with column and provenance metadata.
 
@@ -66,39 +122,12 @@ def write_table(df, path, columns, provenance, *, stage=None):
     import pyarrow as pa
     import pyarrow.parquet as pq
 
-    from . import SCHEMA_VERSION
-
     missing = [c for c in df.columns if c not in columns]
     if missing:
         raise ValueError(f"columns without a description: {missing}")
     table = pa.Table.from_pandas(df, preserve_index=False)
-    fields = []
-    for field in table.schema:
-        spec = columns[field.name]
-        fields.append(field.with_metadata({
-            b"unit": spec.unit.encode(),
-            b"description": spec.description.encode(),
-            b"ucd": spec.ucd.encode(),
-        }))
-    block = {
-        "schema_version": SCHEMA_VERSION,
-        "stage": stage,
-        "columns": {c: asdict(columns[c]) for c in df.columns},
-        "provenance": provenance,
-    }
-    schema = pa.schema(fields, metadata={META_KEY: json.dumps(block, sort_keys=True).encode()})
-    table = table.cast(schema)
-    path = Path(path)
-    path.parent.mkdir(parents=True, exist_ok=True)
-    tmp = path.with_name(f".{path.name}.partial-{os.getpid()}")
-    try:
-        pq.write_table(table, tmp, compression="zstd")
-        with open(tmp, "rb") as fh:
-            os.fsync(fh.fileno())
-        os.replace(tmp, path)
-    finally:
-        if tmp.exists():
-            tmp.unlink()
+    table = table.cast(_described_schema(table.schema, columns, provenance, stage))
+    atomic_write(path, lambda tmp: pq.write_table(table, tmp, compression="zstd"))
 
 
 def read_metadata(path):
@@ -164,22 +193,14 @@ class StreamingTableWriter:
 
     def __enter__(self):
         self.path.parent.mkdir(parents=True, exist_ok=True)
+        _remove_stale_partials(self.path)
         return self
 
     def _schema_for(self, df):
         import pyarrow as pa
 
-        from . import SCHEMA_VERSION
-
-        table = pa.Table.from_pandas(df, preserve_index=False)
-        fields = []
-        for f in table.schema:
-            spec = self.columns[f.name]
-            fields.append(f.with_metadata({b"unit": spec.unit.encode(), b"description": spec.description.encode(),
-                                           b"ucd": spec.ucd.encode()}))
-        block = {"schema_version": SCHEMA_VERSION, "stage": self.stage,
-                 "columns": {c: asdict(self.columns[c]) for c in df.columns}, "provenance": self.provenance}
-        return pa.schema(fields, metadata={META_KEY: json.dumps(block, sort_keys=True).encode()})
+        schema = pa.Table.from_pandas(df, preserve_index=False).schema
+        return _described_schema(schema, self.columns, self.provenance, self.stage)
 
     def write(self, df):
         import pyarrow as pa

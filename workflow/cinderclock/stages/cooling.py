@@ -60,7 +60,7 @@ def cooling(table, settings, grid, compare=None):
     logl = out["log_lum"].to_numpy(dtype=float)
     age_yr, status = grid.age_yr(m, logl)
     has_inputs = np.isfinite(m) & np.isfinite(logl)
-    bits = set_flag(bits, "cooling_off_table", has_inputs & ~np.isfinite(age_yr))
+    bits = set_flag(bits, "cooling_off_table", ~np.isfinite(age_yr))
     bits = set_flag(bits, "cooling_extrapolated", status == STATUS_FAR_FUTURE)
     if settings["cooling"]["model"] == "mestel":
         # Mestel's law ignores neutrinos (bright end) and crystallization (faint end): flag its range

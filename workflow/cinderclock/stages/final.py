@@ -12,7 +12,7 @@ from collections import Counter
 from ..errors import CinderclockError
 from ..provenance import merge_stages, settings_hash
 from ..reasons import REJECT_COLUMNS, metadata_block
-from ..tableio import StreamingTableWriter, read_metadata, read_table, write_table
+from ..tableio import StreamingTableWriter, read_metadata, read_table, write_json, write_table
 
 STAGE = "final"
 #: Stage order of the chain, for the counts.
@@ -89,6 +89,5 @@ def merge(table_paths, reject_paths, manifest_path, out_table, out_rejects, out_
         "rejected_by_reason": {f"{s}/{r}": n for (s, r), n in sorted(reasons.items())},
         "shards": len(manifest["shards"]),
     }
-    with open(out_counts, "w") as fh:
-        json.dump(counts, fh, indent=1)
+    write_json(counts, out_counts)
     return counts

@@ -9,11 +9,18 @@ What happens to each kind of fault:
   usable magnitude in any band: the row goes to the rejects table with a reason code;
 * a sentinel or implausible magnitude (or one without a valid uncertainty): that band is treated
   as missing for the star and the ``band_missing`` flag is set;
-* a spectroscopic Teff or log g outside the plausible range: the value is ignored and the
-  ``spec_out_of_range`` flag is set (the star continues on photometry).
+* a spectroscopic Teff or log g outside the plausible range (or infinite): the value is ignored and
+  the ``spec_out_of_range`` flag is set (the star continues on photometry);
+* an infinite value of any other optional quantity: treated as not measured (NaN), with a warning
+  in the log naming the column;
+* parallax uncertainties whose median is far below what any astrometric survey reaches: a
+  one-line error, because the values are almost certainly in arcsec, not mas (see
+  :func:`check_parallax_unit`).
 """
 
 from __future__ import annotations
+
+import logging
 
 import numpy as np
 import pandas as pd
@@ -30,6 +37,15 @@ STAGE = "ingest"
 TEXT_COLUMN_FRACTION = 0.5
 #: Magnitudes outside this interval are treated as sentinels (common practice: catalogues use 99, -99, 99.99).
 MAG_PLAUSIBLE = (-5.0, 35.0)
+#: A median parallax uncertainty below this (mas) is taken as a unit error. No astrometric survey
+#: comes near it: Gaia EDR3 reaches about 0.02 mas for its brightest stars and about 0.5 mas at
+#: G = 20 (Lindegren et al. 2021, A&A 649, A2; values from memory), and white-dwarf samples are
+#: faint, so their median is a few tenths of a mas. The same survey in arcsec has a median of
+#: ~1e-4 to 1e-3 "mas", far below the floor, while a genuinely distant sample (parallaxes all
+#: below 0.1 mas) still has uncertainties of >= 0.02 mas and passes.
+PARALLAX_ERROR_FLOOR_MAS = 0.005
+
+log = logging.getLogger("cinderclock")
 
 
 def wanted_columns(settings):
@@ -62,6 +78,29 @@ def _parse_numeric(raw, name, path, rows):
         raise InputError(f"expected numbers, found text such as {str(text.iloc[i])!r} in {bad.mean():.0%} of the rows "
                          "(is the column mapping right?)", path, row=int(rows[i]), column=name)
     return parsed, bad
+
+
+def check_parallax_unit(plx_err_mas, path, column, unit_source):
+    """Stop with one line if the parallax uncertainties cannot be in mas (most likely arcsec).
+
+    Parameters
+    ----------
+    plx_err_mas : ndarray
+        Parallax uncertainties after unit conversion (mas).
+    path, column : str
+        File and column (user's name) for the message.
+    unit_source : str
+        Where the unit came from, for the message (e.g. "declared by the file as 'mas'").
+    """
+    err = plx_err_mas[np.isfinite(plx_err_mas) & (plx_err_mas > 0)]
+    if err.size == 0:
+        return
+    median = float(np.median(err))
+    if median < PARALLAX_ERROR_FLOOR_MAS:
+        raise InputError(f"the median parallax uncertainty is {median:.2g} mas, far below what any astrometric "
+                         f"survey reaches (about 0.02 mas at best), so the values look like arcsec, not mas (unit "
+                         f"{unit_source}); set catalogue.units.parallax and catalogue.units.parallax_error to "
+                         "'arcsec' or fix the unit in the file", path, column=column)
 
 
 def ingest(raw, settings, dedupe=True):
@@ -134,6 +173,20 @@ def ingest(raw, settings, dedupe=True):
         q = C.INPUT_QUANTITIES[key]
         out[q.column] = numeric(user_name, key, q.unit)
         specs[q.column] = q.spec
+        inf = np.isinf(out[q.column])
+        if inf.any() and not q.required and key not in ("teff_spec", "logg_spec"):   # those two: flagged below
+            out[q.column][inf] = np.nan
+            log.warning("%s: column '%s': %d infinite value(s) treated as not measured (first at row %d)",
+                        path, user_name, int(inf.sum()), int(rows[np.argmax(inf)]))
+
+    err_name = cat["columns"]["parallax_error"]
+    if raw.units.get(err_name):
+        unit_source = f"declared by the file as {raw.units[err_name]!r}"
+    elif units_cfg.get("parallax_error"):
+        unit_source = f"{units_cfg['parallax_error']!r} from catalogue.units"
+    else:
+        unit_source = "not given, so mas was assumed"
+    check_parallax_unit(out["plx_err_mas"], path, err_name, unit_source)
 
     bits = np.zeros(n, dtype=np.int64)
     # required astrometry
@@ -148,7 +201,7 @@ def ingest(raw, settings, dedupe=True):
         if key in cat["columns"]:
             q = C.INPUT_QUANTITIES[key]
             v = out[q.column]
-            off = np.isfinite(v) & ((v < q.low) | (v > q.high))
+            off = ~np.isnan(v) & ((v < q.low) | (v > q.high))          # infinities included
             bits = set_flag(bits, "spec_out_of_range", off)
             v[off] = np.nan
             err_key = key + "_error"

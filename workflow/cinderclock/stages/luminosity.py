@@ -123,6 +123,10 @@ def luminosity(table, settings, grid):
     errs = np.column_stack([out[C.mag_err_column(b)].to_numpy(float) for b in grid.band_keys])
     teff_spec = out["teff_spec_k"].to_numpy(float) if "teff_spec_k" in out else np.full(n, np.nan)
     teff_spec_err = out["teff_spec_err_k"].to_numpy(float) if "teff_spec_err_k" in out else np.full(n, np.nan)
+    t_lo, t_hi = grid.teff_range_k
+    rj.reject((teff_spec < t_lo) | (teff_spec > t_hi), "temperature_out_of_range",
+              lambda i: [f"spectroscopic Teff {t:.0f} K outside the model photometry ({t_lo:.0f}-{t_hi:.0f} K)"
+                         for t in teff_spec[i]])
     logg = out["logg_spec"].to_numpy(float) if "logg_spec" in out else np.full(n, np.nan)
     logg = np.where(np.isfinite(logg), logg, lum["default_logg"])
     if grid.gravity_dependent:
