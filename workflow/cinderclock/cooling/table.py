@@ -1,0 +1,208 @@
+"""Cooling tables: age, effective temperature and radius against (mass, log L), built once.
+
+:func:`build_cooling_table` returns a long-format :class:`pandas.DataFrame`, one row per
+(mass, log L) node, which the workflow writes once per configuration and the cooling stage reads
+back into a :class:`~cinderclock.cooling.grid.CoolingGrid` for vectorised look-ups over whole
+shards. The same long format (with fewer columns) is accepted from users with their own
+evolutionary sequences (:mod:`cinderclock.cooling.usertracks`).
+
+Columns (units in :func:`table_columns`):
+
+``mass_msun``, ``log_lum`` (log10 L/Lsun, photon luminosity), ``age_yr`` (cooling age),
+``teff_k``, ``radius_rsun``, ``logg_cgs``, ``log_tc`` (log10 core temperature, K),
+``log_lum_nu`` (log10 neutrino luminosity, Lsun; NaN where not modelled),
+``crystallized_fraction`` (NaN where not modelled), ``far_future`` (True for rows fainter than
+:data:`FAINT_LIMIT_LOG_LUM`: the model's formal continuation, not a calibrated prediction).
+
+The frame's ``attrs["cooling_model"]`` holds the provenance (model, references, settings).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..constants import L_SUN_W, R_SUN_M, SIGMA_SB_SI
+from . import mestel
+from .composition import core_composition
+from .envelope import envelope_model
+from .grid import CoolingGrid  # noqa: F401  (re-exported: the table's reader)
+
+#: Default white-dwarf masses of a table (Msun): 0.45 to 1.20 in steps of 0.05.
+DEFAULT_MASSES_MSUN = np.round(np.arange(0.45, 1.2001, 0.05), 4)
+#: Brightest tabulated luminosity, log10 L/Lsun.
+BRIGHT_LIMIT_LOG_LUM = 2.0
+#: Faintest luminosity (log10 L/Lsun) treated as inside the model's range; fainter rows are the
+#: "far future". The faintest known disk white dwarfs sit near log L = -4.5 to -5 (common practice);
+#: -5.5 matches the range of validity stored with Mestel's law.
+FAINT_LIMIT_LOG_LUM = -5.5
+#: Faintest tabulated luminosity (far future; 1e-18 Lsun is a white dwarf of a few kelvin).
+FAR_FUTURE_LOG_LUM = -18.0
+
+MODEL_REFERENCES = {
+    "numerical": [
+        "Mestel, L. 1952, MNRAS 112, 583 (Kramers envelope; Shapiro & Teukolsky 1983, section 4.1)",
+        "Itoh, N., Hayashi, H., Nishikawa, A. & Kohyama, Y. 1996, ApJS 102, 411 (neutrino emission)",
+        "Potekhin, A. Y. & Chabrier, G. 2000, PRE 62, 8554 (melting at Gamma = 175)",
+        "Salaris, M. et al. 1997, ApJ 486, 413 (latent heat 0.77 kT per ion)",
+        "Chandrasekhar, S. 1939, An Introduction to the Study of Stellar Structure (T = 0 structure)",
+    ],
+    "mestel": [
+        "Mestel, L. 1952, MNRAS 112, 583; Shapiro & Teukolsky 1983, section 4.1",
+        "Chandrasekhar, S. 1939, An Introduction to the Study of Stellar Structure (T = 0 radii)",
+    ],
+}
+
+MODEL_CAUTIONS = {
+    "numerical": "isothermal core on a zero-temperature profile; Kramers envelope without convective "
+                 "coupling; ideal-gas ion liquid; no C/O phase separation or 22Ne sedimentation; absolute "
+                 "ages uncertain by tens of per cent through the envelope calibration",
+    "mestel": "ion heat only, no neutrinos, no crystallization, no electron heat capacity; indicative ages",
+}
+
+
+def default_log_lum_grid(bright=BRIGHT_LIMIT_LOG_LUM, far_future=FAR_FUTURE_LOG_LUM):
+    """Descending log L nodes: steps of 0.01 dex down to -6, then 0.05 dex to ``far_future``."""
+    fine = np.round(np.arange(bright, -6.0, -0.01), 6)
+    coarse = np.round(np.arange(-6.0, far_future - 1e-9, -0.05), 6)
+    return np.concatenate([fine, coarse])
+
+
+def _radius_sequence(masses, mu_e):
+    from ..massradius.chandrasekhar import zero_temperature_sequence
+
+    seq = zero_temperature_sequence(mu_e=mu_e)
+    return np.interp(masses, seq["mass_msun"], seq["radius_rsun"], left=np.nan, right=np.nan)
+
+
+def _teff_k(log_lum, radius_rsun):
+    lum = L_SUN_W * 10.0 ** np.asarray(log_lum, dtype=float)
+    r = np.asarray(radius_rsun, dtype=float) * R_SUN_M
+    return (lum / (4.0 * np.pi * r**2 * SIGMA_SB_SI)) ** 0.25
+
+
+def _logg(mass_msun, radius_rsun):
+    from ..massradius.nauenberg import logg_cgs
+    return logg_cgs(mass_msun, radius_rsun)
+
+
+def build_cooling_table(model="numerical", masses=None, envelope="He", core="CO", *, neutrinos=True,
+                        crystallization=True, latent_heat=True, electrons=True, calibration=None,
+                        log_lum_grid=None, profiles=None, faint_limit=FAINT_LIMIT_LOG_LUM, dlog_tc=0.005):
+    """Tabulate cooling age, Teff and radius against mass and luminosity.
+
+    Parameters
+    ----------
+    model : {"numerical", "mestel"}
+        The energy-budget model of :mod:`~cinderclock.cooling.tracks`, or Mestel's law with the
+        same envelope.
+    masses : array_like, optional
+        White-dwarf masses in Msun (default :data:`DEFAULT_MASSES_MSUN`).
+    envelope : str or EnvelopeModel
+        ``"He"`` or ``"H"`` (see :mod:`~cinderclock.cooling.envelope`).
+    core : str or CoreComposition
+        Core composition (default C/O 50:50 by mass).
+    neutrinos, crystallization, latent_heat, electrons : bool
+        Physics switches of the numerical model (ignored by ``"mestel"``).
+    calibration : float, optional
+        Envelope calibration factor (see :func:`~cinderclock.cooling.envelope.calibration_for_coefficient`).
+    log_lum_grid : array_like, optional
+        Descending log10 L/Lsun nodes (default :func:`default_log_lum_grid`).
+    profiles : list of dict, optional
+        Structure profiles, one per mass (numerical model only); default zero-temperature
+        Chandrasekhar profiles.
+    faint_limit : float
+        Rows fainter than this are marked ``far_future``.
+    dlog_tc : float
+        Integration step in log10 T_c (numerical model).
+
+    Returns
+    -------
+    pandas.DataFrame
+        Long format, sorted by mass then descending log L; provenance in ``attrs["cooling_model"]``.
+    """
+    import pandas as pd
+
+    masses = np.asarray(DEFAULT_MASSES_MSUN if masses is None else masses, dtype=float)
+    grid = np.asarray(default_log_lum_grid() if log_lum_grid is None else log_lum_grid, dtype=float)
+    env = envelope_model(envelope, calibration)
+    comp = core_composition(core)
+    n_m, n_l = masses.size, grid.size
+    log_lum = np.broadcast_to(grid, (n_m, n_l))
+
+    if model == "numerical":
+        from .tracks import PhysicsSwitches, cooling_tracks
+
+        sw = PhysicsSwitches(neutrinos=neutrinos, crystallization=crystallization, latent_heat=latent_heat,
+                             electrons=electrons)
+        tr = cooling_tracks(masses, env, comp, sw, profiles=profiles, log_lum_end=float(grid.min()),
+                            dlog_tc=dlog_tc)
+        age = np.empty((n_m, n_l))
+        log_tc = np.empty((n_m, n_l))
+        lnu = np.empty((n_m, n_l))
+        qc = np.empty((n_m, n_l))
+        for i in range(n_m):                     # resample each track (ascending x for np.interp)
+            x = -tr.log_lum[i]
+            age[i] = 10.0 ** np.interp(-grid, x, np.log10(tr.age_yr[i]), left=np.nan, right=np.nan)
+            log_tc[i] = np.interp(-grid, x, tr.log_tc, left=np.nan, right=np.nan)
+            lnu[i] = np.interp(-grid, x, np.where(np.isfinite(tr.log_lum_nu[i]), tr.log_lum_nu[i], -99.0),
+                               left=np.nan, right=np.nan)
+            qc[i] = np.interp(-grid, x, tr.crystallized_fraction[i], left=np.nan, right=np.nan)
+        lnu = np.where(lnu < -90.0, -np.inf, lnu)
+        radius = np.broadcast_to(tr.radius_rsun[:, None], (n_m, n_l))
+        settings = tr.settings
+    elif model == "mestel":
+        k = mestel.age_coefficient_yr(comp.abar, envelope_cgs=env.constant_cgs())
+        mm = masses[:, None]
+        age = mestel.cooling_age_yr(mm, log_lum, k)
+        log_tc = env.log_tc(mm, log_lum)
+        lnu = np.full((n_m, n_l), np.nan)
+        qc = np.full((n_m, n_l), np.nan)
+        radius = np.broadcast_to(_radius_sequence(masses, comp.mu_e)[:, None], (n_m, n_l))
+        settings = {"envelope": env.as_model(), "core": comp.key, "age_coefficient_yr": float(k)}
+    else:
+        raise ValueError(f"unknown cooling model {model!r}; choose 'numerical' or 'mestel'")
+
+    mass2 = np.broadcast_to(masses[:, None], (n_m, n_l))
+    df = pd.DataFrame({
+        "mass_msun": mass2.ravel(),
+        "log_lum": log_lum.ravel(),
+        "age_yr": age.ravel(),
+        "teff_k": _teff_k(log_lum, radius).ravel(),
+        "radius_rsun": np.asarray(radius).ravel(),
+        "logg_cgs": _logg(mass2, radius).ravel(),
+        "log_tc": log_tc.ravel(),
+        "log_lum_nu": lnu.ravel(),
+        "crystallized_fraction": qc.ravel(),
+        "far_future": (log_lum < faint_limit).ravel(),
+    })
+    df = df[np.isfinite(df["age_yr"].to_numpy())].reset_index(drop=True)
+    df.attrs["cooling_model"] = {
+        "name": f"cooling_{model}",
+        "reference": "; ".join(MODEL_REFERENCES[model]),
+        "caution": MODEL_CAUTIONS[model],
+        "faint_limit_log_lum": faint_limit,
+        "settings": settings,
+    }
+    return df
+
+
+def _columns():
+    from ..tableio import Column
+
+    return {
+        "mass_msun": Column("solMass", "White-dwarf mass of the cooling track", "phys.mass"),
+        "log_lum": Column("dex(solLum)", "log10 photon luminosity in solar units", "phys.luminosity"),
+        "age_yr": Column("yr", "Cooling age since the start of the white-dwarf track", "time.age"),
+        "teff_k": Column("K", "Effective temperature from L = 4 pi R^2 sigma Teff^4", "phys.temperature.effective"),
+        "radius_rsun": Column("solRad", "Zero-temperature radius of the track", "phys.size.radius"),
+        "logg_cgs": Column("dex(cm/s2)", "log10 surface gravity", "phys.gravity"),
+        "log_tc": Column("dex(K)", "log10 core temperature of the isothermal core", "phys.temperature"),
+        "log_lum_nu": Column("dex(solLum)", "log10 neutrino luminosity (NaN where not modelled)", "phys.luminosity"),
+        "crystallized_fraction": Column("", "Crystallized mass fraction of the star (NaN where not modelled)", ""),
+        "far_future": Column("", "True fainter than the model's calibrated range (formal continuation)", "meta.code"),
+    }
+
+
+def table_columns():
+    """Column descriptions (:class:`cinderclock.tableio.Column`) of a cooling table."""
+    return _columns()
