@@ -5,6 +5,8 @@ from cinderclock.config import check_config
 configfile: "config/config.yaml"
 check_config(config)  # JSON Schema validation with defaults (workflow/schemas/config.schema.yaml)
 
+report: "workflow/report/workflow.rst"
+
 include: "workflow/rules/common.smk"
 include: "workflow/rules/ingest.smk"
 include: "workflow/rules/models.smk"
@@ -13,9 +15,13 @@ include: "workflow/rules/luminosity.smk"
 include: "workflow/rules/mass.smk"
 include: "workflow/rules/cooling.smk"
 include: "workflow/rules/final.smk"
+include: "workflow/rules/population.smk"
 
 
 rule all:
     default_target: True
     input:
         rules.final.output,
+        rules.population_age.output,
+        rules.figures.output,
+        rules.run_summary.output,

@@ -25,6 +25,7 @@ STAGE_SECTIONS = {
     "mass": ("mass",),
     "cooling_model": ("cooling",),
     "cooling": ("cooling",),
+    "population": ("population", "select", "luminosity"),
 }
 
 
