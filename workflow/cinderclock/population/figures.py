@@ -29,7 +29,7 @@ _RC = {
     "font.size": 10, "axes.titlesize": 11, "axes.labelsize": 10, "legend.fontsize": 8.5,
     "axes.spines.top": False, "axes.spines.right": False, "axes.grid": True, "grid.color": "#e4e8ec",
     "grid.linewidth": 0.6, "axes.edgecolor": INK, "axes.labelcolor": INK, "xtick.color": INK,
-    "ytick.color": INK, "savefig.dpi": 150, "figure.dpi": 100, "pdf.fonttype": 42,
+    "ytick.color": INK, "savefig.dpi": 150, "figure.dpi": 100,
 }
 
 
@@ -137,11 +137,12 @@ def colour_magnitude(table, tracks, colour, band, stem, age_marks_gyr=(0.1, 1.0,
         cmap = LinearSegmentedColormap.from_list("cinder", [AMBER, BRICK, PLUM, INK])
         has_mass = ok & np.isfinite(mass)
         size = 9 if ok.sum() < 20000 else 2
+        raster = bool(ok.sum() > 5000)            # keep the PDF small for large samples
         if (ok & ~has_mass).any():
             ax.scatter(x[ok & ~has_mass], y[ok & ~has_mass], s=size, marker="D", color="#9aa5ae", lw=0,
-                       label="no mass", zorder=2)
+                       label="no mass", zorder=2, rasterized=raster)
         sc = ax.scatter(x[has_mass], y[has_mass], c=mass[has_mass], cmap=cmap, vmin=0.4, vmax=1.2, s=size,
-                        marker="D", lw=0, alpha=0.8, zorder=2)
+                        marker="D", lw=0, alpha=0.8, zorder=2, rasterized=raster)
         cb = fig.colorbar(sc, ax=ax, pad=0.02, shrink=0.85)
         cb.set_label("white-dwarf mass (M$_\\odot$)")
         halo = [patheffects.Stroke(linewidth=3.6, foreground="white"), patheffects.Normal()]
@@ -171,7 +172,8 @@ def colour_magnitude(table, tracks, colour, band, stem, age_marks_gyr=(0.1, 1.0,
         marks = ", ".join(f"{a:g}" for a in age_marks_gyr)
         if any(np.isfinite(t["age_yr"]).any() for t in tracks):
             ax.plot([], [], ls="none", marker="h", mfc="white", mec=INK, label=f"cooling ages {marks} Gyr")
-        ax.legend(loc="lower left", frameon=True, framealpha=0.9)
+        if ax.get_legend_handles_labels()[0]:
+            ax.legend(loc="lower left", frameon=True, framealpha=0.9)
         return save(fig, stem)
 
 

@@ -165,7 +165,9 @@ class PopulationModel:
         """
         q = np.broadcast_to(np.asarray(mbol, dtype=float)[None, :], (self._mbol.shape[0], np.size(mbol)))
         y = np.broadcast_to(self._log_age_gyr[None, :], self._mbol.shape)
-        return 10.0 ** _row_interp(self._mbol, y, q)
+        t = 10.0 ** _row_interp(self._mbol, y, q)
+        # brighter than the youngest tabulated node: reached at cooling age zero
+        return np.where(q < self._mbol[:, :1], 0.0, t)
 
     def bin_counts(self, mbol_edges, ages_gyr, sfh=None, chunk=64):
         """White dwarfs per M_bol bin for each population age.

@@ -117,8 +117,8 @@ def luminosity_function_stage(table, settings):
         status[~np.isfinite(sin_b)] = 4
     v = compute_vmax(dist, mag, limits, plx_over_err=snr, plx_err_mas=plx_err, pm_mas_yr=pm, sin_b=sin_b)
     status[(status == 0) & ~np.isfinite(mbol)] = 3
-    status[(status == 0) & ~v["usable"]] = 2
     status[(status == 0) & ~np.isfinite(mag)] = 1
+    status[(status == 0) & ~v["usable"]] = 2
     used = status == 0
     inv = np.where(used, 1.0 / v["vmax_pc3"], np.nan)
 
