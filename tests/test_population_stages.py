@@ -141,7 +141,7 @@ def test_track_geometry_gives_the_sun_its_absolute_bolometric_magnitude():
     assert cmd_tracks(mr, phot, ("bol", "bol"), "bol", [0.6]) == []          # no table mass near 0.6
 
 
-def test_figures_are_written(final_table, settings, tmp_path):
+def test_figures_are_written(final_table, settings, tmp_path, monkeypatch):
     # internal check: every figure function writes a non-blank PNG and a PDF, with and without total ages
     import matplotlib.image as mpimg
 
@@ -164,7 +164,9 @@ def test_figures_are_written(final_table, settings, tmp_path):
     written += figures.age_distributions(with_total, tmp_path / "ages_total", population_age=(9.0, 8.5, 9.5))
     written += figures.luminosity_function(lf, tmp_path / "lf", model=model, fit=fit, note="note")
     written += figures.age_fit(fit, profile, tmp_path / "fit")
-    assert len(written) == 12
+    monkeypatch.setattr(figures, "DENSITY_ABOVE", 100)                     # large-sample drawing path
+    written += figures.colour_magnitude(final_table, tracks, ("BP", "RP"), "G", tmp_path / "cmd_cells")
+    assert len(written) == 14
     for p in written:
         assert p.exists() and p.stat().st_size > 5000
         if p.suffix == ".png":

@@ -136,15 +136,26 @@ def colour_magnitude(table, tracks, colour, band, stem, age_marks_gyr=(0.1, 1.0,
         ok = np.isfinite(x) & np.isfinite(y)
         cmap = LinearSegmentedColormap.from_list("cinder", [AMBER, BRICK, PLUM, INK])
         has_mass = ok & np.isfinite(mass)
-        size = 9 if ok.sum() < 20000 else 2
-        raster = bool(ok.sum() > 5000)            # keep the PDF small for large samples
-        if (ok & ~has_mass).any():
-            ax.scatter(x[ok & ~has_mass], y[ok & ~has_mass], s=size, marker="D", color="#9aa5ae", lw=0,
-                       label="no mass", zorder=2, rasterized=raster)
-        sc = ax.scatter(x[has_mass], y[has_mass], c=mass[has_mass], cmap=cmap, vmin=0.4, vmax=1.2, s=size,
-                        marker="D", lw=0, alpha=0.8, zorder=2, rasterized=raster)
+        if ok.sum() <= DENSITY_ABOVE:
+            raster = bool(ok.sum() > 5000)            # keep the PDF small for large samples
+            if (ok & ~has_mass).any():
+                ax.scatter(x[ok & ~has_mass], y[ok & ~has_mass], s=9, marker="D", color="#9aa5ae", lw=0,
+                           label="no mass", zorder=2, rasterized=raster)
+            sc = ax.scatter(x[has_mass], y[has_mass], c=mass[has_mass], cmap=cmap, vmin=0.4, vmax=1.2, s=9,
+                            marker="D", lw=0, alpha=0.8, zorder=2, rasterized=raster)
+            label = "white-dwarf mass (M$_\\odot$)"
+        else:
+            # large samples: mean mass in cells of the diagram (one image instead of millions of markers)
+            xr = np.nanpercentile(x[ok], [0.2, 99.8]) + [-0.25, 0.25]
+            yr = np.nanpercentile(y[ok], [0.1, 99.9]) + [-0.7, 0.7]
+            n_cell, xe, ye = np.histogram2d(x[has_mass], y[has_mass], bins=(300, 300), range=(xr, yr))
+            m_sum, _, _ = np.histogram2d(x[has_mass], y[has_mass], bins=(xe, ye), weights=mass[has_mass])
+            with np.errstate(invalid="ignore", divide="ignore"):
+                mean = np.where(n_cell > 0, m_sum / n_cell, np.nan)
+            sc = ax.pcolormesh(xe, ye, mean.T, cmap=cmap, vmin=0.4, vmax=1.2, zorder=2, rasterized=True)
+            label = "mean white-dwarf mass in the cell (M$_\\odot$)"
         cb = fig.colorbar(sc, ax=ax, pad=0.02, shrink=0.85)
-        cb.set_label("white-dwarf mass (M$_\\odot$)")
+        cb.set_label(label)
         halo = [patheffects.Stroke(linewidth=3.6, foreground="white"), patheffects.Normal()]
         for i, t in enumerate(tracks):
             c = cmap(np.clip((t["mass_msun"] - 0.4) / 0.8, 0, 1))
@@ -168,7 +179,7 @@ def colour_magnitude(table, tracks, colour, band, stem, age_marks_gyr=(0.1, 1.0,
             ax.invert_yaxis()
         ax.set_xlabel(f"{colour[0]} $-$ {colour[1]} (mag)")
         ax.set_ylabel(f"absolute magnitude M$_{{{band}}}$ (mag)")
-        ax.set_title(title or f"Colour-magnitude diagram ({int(ok.sum())} white dwarfs)")
+        ax.set_title(title or f"Colour-magnitude diagram ({int(ok.sum()):,} white dwarfs)")
         marks = ", ".join(f"{a:g}" for a in age_marks_gyr)
         if any(np.isfinite(t["age_yr"]).any() for t in tracks):
             ax.plot([], [], ls="none", marker="h", mfc="white", mec=INK, label=f"cooling ages {marks} Gyr")
@@ -199,7 +210,7 @@ def mass_distribution(table, stem, bin_width=0.02):
             _note(ax, "no masses in this table")
         ax.set_xlabel("white-dwarf mass (M$_\\odot$)")
         ax.set_ylabel(f"stars per {bin_width:g} M$_\\odot$")
-        ax.set_title(f"Mass distribution ({int(ok.sum())} stars with a mass)")
+        ax.set_title(f"Mass distribution ({int(ok.sum()):,} stars with a mass)")
         return save(fig, stem)
 
 
@@ -228,7 +239,7 @@ def age_distributions(table, stem, population_age=None):
                 lo = max(np.nanmin(a[ok]), 1e-3)
                 bins = np.logspace(np.log10(lo), np.log10(max(np.nanmax(a[ok]), 15.0)), 40)
                 ax.hist(a[ok], bins=bins, color=colour, edgecolor="white", linewidth=0.4,
-                        label=f"{int(ok.sum())} stars")
+                        label=f"{int(ok.sum()):,} stars")
                 ax.set_xscale("log")
             else:
                 _note(ax, f"no finite {label}s")
@@ -245,6 +256,8 @@ def age_distributions(table, stem, population_age=None):
         return save(fig, stem)
 
 
+#: Above this many stars the colour-magnitude diagram shows cells of mean mass instead of markers.
+DENSITY_ABOVE = 50_000
 #: Longest lower error bar drawn in the luminosity function (dex).
 LOWER_BAR_DEX = 1.0
 
@@ -300,7 +313,7 @@ def luminosity_function(lf, stem, model=None, fit=None, error_column="phi_err_po
         ax.set_xlabel("absolute bolometric magnitude M$_{bol}$ (mag)")
         ax.set_ylabel("log$_{10}$ $\\Phi$ (pc$^{-3}$ mag$^{-1}$)")
         n = int(lf["n_stars"].sum())
-        ax.set_title(f"White-dwarf luminosity function ({n} stars)")
+        ax.set_title(f"White-dwarf luminosity function ({n:,} stars)")
         if len(y):
             ax.set_ylim(np.nanmin(y - lo) - 0.3, np.nanmax(y + np.nan_to_num(hi)) + 0.9)
         if note:

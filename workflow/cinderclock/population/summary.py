@@ -94,9 +94,9 @@ def render(counts, provenance, config, lf_summary, fit_summary, title="cinderclo
              f"<style>{_CSS}</style></head><body>", f"<h1>{_e(title)}</h1>"]
     parts.append("<p>Catalogue <code>{}</code> (SHA-256 <code>{}</code>), cinderclock {}, configuration hash "
                  "<code>{}</code>.</p>".format(_e(provenance.get("catalogue", config.get("catalogue", {}).get("path"))),
-                                               _e(str(provenance.get("catalogue_sha256", ""))[:16] + "..."),
+                                               _e(str(provenance.get("catalogue_sha256", ""))[:16] + "\u2026"),
                                                _e(provenance.get("package_version", "?")),
-                                               _e(str(provenance.get("config_hash", ""))[:16] + "...")))
+                                               _e(str(provenance.get("config_hash", ""))[:16] + "\u2026")))
 
     parts.append("<h2>Stage counts</h2>")
     rows = [("rows read", counts.get("rows_read")), ("rows in the results", counts.get("rows_in_results")),
@@ -128,7 +128,7 @@ def render(counts, provenance, config, lf_summary, fit_summary, title="cinderclo
                      vv.get("z") if vv.get("z") is not None else nan,
                      lf_summary.get("space_density_pc3") or nan))
     lim = lf_summary.get("limits", {})
-    parts.append(_table(["survey limit", "value"], [(k, v) for k, v in lim.items()]))
+    parts.append(_table(["survey limit", "value"], [(k, "none" if v is None else v) for k, v in lim.items()]))
 
     parts.append("<h2>Population age</h2>")
     if fit_summary:
