@@ -196,3 +196,20 @@ def test_run_summary_lists_counts_models_and_configuration(config):
     assert "Mestel, L. 1952" in page and "Salpeter 1955" in page
     assert "8.800 - 9.400" in page and "n/a - n/a" in page
     assert "faint_mag_limit" in page                                        # the configuration listing
+
+
+def test_too_few_stars_give_no_fit_and_the_figures_say_so(final_table, settings, tmp_path):
+    # internal check: a sample with no stars in the fitted range goes through without a fit
+    from cinderclock.population import figures
+    from cinderclock.population.stages import MIN_STARS_FOR_FIT
+
+    bright = final_table[final_table["mbol"] < 11.0].reset_index(drop=True)
+    settings["population"]["fit"]["mbol_range"] = [14.0, 19.0]
+    stars, lf, _ = luminosity_function_stage(bright, settings)
+    link = cooling_from_table(pd.DataFrame({"coefficient_yr": [COEFF], "ion_mass_number": [12.0]}))
+    fit, model, profile = population_age_stage(stars, link, settings)
+    assert fit["age_gyr"] is None and fit["n_stars_in_fit"] < MIN_STARS_FOR_FIT
+    assert "no population age" in fit["cautions"][0]
+    written = figures.luminosity_function(lf, tmp_path / "lf", model=model, fit=fit)
+    written += figures.age_fit(fit, profile, tmp_path / "fit")
+    assert all(p.exists() for p in written)

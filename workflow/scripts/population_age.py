@@ -17,8 +17,11 @@ def body(smk):
     write_stage(model, smk.output.model, MODEL_COLUMNS, prov, "population_age")
     write_stage(profile, smk.output.profile, PROFILE_COLUMNS, prov, "population_age")
     write_json(summary | {"settings": smk.params.settings}, smk.output.fit)
-    log.info("population age %.3f Gyr (68 %%: %.3f - %.3f) from %d stars", summary["age_gyr"],
-             *summary["interval68_gyr"], summary["n_stars_in_fit"])
+    if summary["age_gyr"] is None:
+        log.warning("%s", summary["cautions"][0])
+    else:
+        log.info("population age %.3f Gyr (68 %%: %s - %s) from %d stars", summary["age_gyr"],
+                 *summary["interval68_gyr"], summary["n_stars_in_fit"])
 
 
 run(snakemake, body)  # noqa: F821

@@ -33,7 +33,7 @@ def body(smk):
     figures.colour_magnitude(table, tracks, colour, band, stem(smk.output.cmd))
     figures.mass_distribution(table, stem(smk.output.mass))
     interval = fit["interval68_gyr"] if None not in fit["interval68_gyr"] else fit["likelihood_interval_gyr"]
-    band68 = (fit["age_gyr"], *interval)
+    band68 = (fit["age_gyr"], *interval) if fit["age_gyr"] is not None and None not in interval else None
     figures.age_distributions(table, stem(smk.output.ages), population_age=band68)
     err = "phi_err_bootstrap" if settings["population"]["lf_errors"] == "bootstrap" else "phi_err_poisson"
     lf_summary = json.loads(Path(smk.input.lf_summary).read_text())

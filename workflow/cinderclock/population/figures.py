@@ -221,6 +221,8 @@ def age_distributions(table, stem, population_age=None):
     when the table has no ``total_age_gyr`` column.
     """
     plt = _plt()
+    from matplotlib.ticker import FuncFormatter, LogLocator, NullFormatter
+
     with plt.rc_context(_RC):
         fig, axes = plt.subplots(1, 2, figsize=(10.5, 4.2), sharey=False)
         panels = (("cool_age_gyr", "cooling age", TEAL), ("total_age_gyr", "total age (cooling + progenitor)", PLUM))
@@ -241,6 +243,10 @@ def age_distributions(table, stem, population_age=None):
                 ax.hist(a[ok], bins=bins, color=colour, edgecolor="white", linewidth=0.4,
                         label=f"{int(ok.sum()):,} stars")
                 ax.set_xscale("log")
+                decades = np.log10(bins[-1] / bins[0])
+                ax.xaxis.set_major_locator(LogLocator(base=10, subs=(1.0, 2.0, 5.0) if decades <= 2.5 else (1.0,)))
+                ax.xaxis.set_major_formatter(FuncFormatter(lambda v, _: f"{v:g}"))
+                ax.xaxis.set_minor_formatter(NullFormatter())
             else:
                 _note(ax, f"no finite {label}s")
             if population_age is not None and np.isfinite(population_age[0]):
@@ -292,6 +298,9 @@ def luminosity_function(lf, stem, model=None, fit=None, error_column="phi_err_po
         if fit and fit.get("fit_edges_mbol"):
             e = fit["fit_edges_mbol"]
             ax.axvspan(e[0], e[-1], color=MIST, alpha=0.45, lw=0, label="fitted range")
+        if fit and fit.get("age_gyr") is None:
+            fit = dict(fit, age_gyr=float("nan"))
+            model = None
         if model is not None and len(model):
             xm = model["mbol_mid"].to_numpy(dtype=float)
             pm = model["phi_model"].to_numpy(dtype=float)
@@ -328,6 +337,14 @@ def age_fit(fit, profile, stem):
     plt = _plt()
     with plt.rc_context(_RC):
         fig, (a1, a2) = plt.subplots(1, 2, figsize=(10.5, 4.0))
+        if fit.get("age_gyr") is None:
+            for ax in (a1, a2):
+                _note(ax, "\n".join(fit.get("cautions", ["no population-age fit"])[:1]))
+                ax.set_xlabel("population age T (Gyr)")
+            a1.set_title("Likelihood of the population age")
+            a2.set_title("Bootstrap distribution")
+            fig.tight_layout()
+            return save(fig, stem)
         t = profile["age_gyr"].to_numpy(dtype=float)
         d = profile["delta_lnl"].to_numpy(dtype=float)
         best = fit["age_gyr"]

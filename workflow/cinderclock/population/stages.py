@@ -13,6 +13,9 @@ import pandas as pd
 from ..errors import ConfigError, InputError
 from ..tableio import Column
 
+#: Fewest stars in the fitted magnitude range for which a population age is fitted.
+MIN_STARS_FOR_FIT = 10
+
 STAR_COLUMNS = {
     "star_id": Column("", "Source identifier from the input catalogue", "meta.id;meta.main"),
     "mbol": Column("mag", "Absolute bolometric magnitude (IAU 2015 B2 scale)", "phys.magAbs.bol"),
@@ -187,6 +190,9 @@ def population_age_stage(stars, cooling_link, settings):
     used = stars["lf_status"].to_numpy() == 0
     mbol = stars["mbol"].to_numpy(dtype=float)[used]
     inv = 1.0 / stars["vmax_pc3"].to_numpy(dtype=float)[used]
+    in_range = int(np.sum((mbol >= fit_edges[0]) & (mbol < fit_edges[-1])))
+    if in_range < MIN_STARS_FOR_FIT:
+        return _no_fit(in_range, fit_edges, ages, edges, model, cooling_link, sfh)
     grid = model.luminosity_function(fit_edges, ages, sfh)
     boot = pop["bootstrap"]
     fit = fit_age(mbol, inv, fit_edges, ages, grid, n_boot=int(boot["resamples"]), seed=int(boot["seed"]),
@@ -223,6 +229,26 @@ def population_age_stage(stars, cooling_link, settings):
         ] + (["The best fit lies at the edge of the age grid: widen population.fit.age_grid."]
              if fit.at_grid_edge else []) + _interval_caution(fit),
     }
+    return summary, model_df, profile
+
+
+def _no_fit(n_stars, fit_edges, ages, edges, model, cooling_link, sfh):
+    """Result without a fit (too few stars): the workflow goes on and the report says why."""
+    summary = {
+        "age_gyr": None, "at_grid_edge": False, "sigma_gyr": None, "interval68_gyr": [None, None],
+        "interval95_gyr": [None, None], "likelihood_interval_gyr": [None, None], "amplitude_per_pc3_per_gyr": None,
+        "deviance": None, "dof": None, "n_stars_in_fit": n_stars, "fit_edges_mbol": [float(e) for e in fit_edges],
+        "counts": [], "bootstrap_resamples": 0, "bootstrap_ages_gyr": [], "white_dwarf_density_pc3": None,
+        "sfh": sfh.as_model(), "models": model.models() + list(cooling_link.models) + [sfh.as_model()],
+        "cooling_model": cooling_link.name, "imf_share_not_modelled": model.lost_fraction,
+        "progenitor_mass_range_msun": list(model.mass_range_msun), "method": "not fitted",
+        "cautions": [f"Only {n_stars} star(s) in the fitted M_bol range (at least {MIN_STARS_FOR_FIT} needed): no "
+                     "population age was fitted."],
+    }
+    mids = 0.5 * (edges[:-1] + edges[1:])
+    model_df = pd.DataFrame({"mbol_lo": edges[:-1], "mbol_hi": edges[1:], "mbol_mid": mids,
+                             "phi_model": np.full(mids.size, np.nan)})
+    profile = pd.DataFrame({"age_gyr": ages, "delta_lnl": np.full(ages.size, np.nan)})
     return summary, model_df, profile
 
 
