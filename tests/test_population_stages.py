@@ -185,7 +185,8 @@ def test_run_summary_lists_counts_models_and_configuration(config):
               "rejected_by_reason": {"ingest/malformed_row": 1, "select/parallax_snr": 2}}
     prov = {"package_version": "0.1.0", "config_hash": "ab" * 32, "catalogue_sha256": "cd" * 32,
             "reasons": {"parallax_snr": "Parallax <S/N> below the limit"},
-            "stages": {"cooling_model": {"models": [{"name": "mestel", "reference": "Mestel, L. 1952, MNRAS 112, 583"}]}}}
+            "stages": {"cooling_model": {"models": [{"name": "mestel",
+                                                     "reference": "Mestel, L. 1952, MNRAS 112, 583"}]}}}
     lf = {"status_counts": {"used": 7}, "v_over_vmax": {"n": 7, "mean": 0.5, "sigma": 0.1, "z": 0.0}, "limits": {}}
     fit = {"age_gyr": 9.1, "interval68_gyr": [8.8, 9.4], "interval95_gyr": [None, None],
            "likelihood_interval_gyr": [8.9, 9.3], "models": [{"name": "salpeter", "reference": "Salpeter 1955"}],

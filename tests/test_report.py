@@ -64,7 +64,12 @@ class DevToolsPipe:
         self.timeout = timeout
 
     def _message(self):
+        import select
+
         while b"\0" not in self._buf:
+            ready, _, _ = select.select([self._r], [], [], self.timeout)
+            if not ready:
+                raise RuntimeError(f"no answer from the browser within {self.timeout} s")
             chunk = self._r.read(1 << 16)
             if not chunk:
                 raise RuntimeError("the browser closed its DevTools pipe")

@@ -12,8 +12,9 @@ def body(smk):
     cool_df, _, cool_meta = read_table(smk.input.cooling)
     link = cooling_from_table(cool_df, cool_meta, smk.input.cooling)
     summary, model, profile = population_age_stage(stars, link, smk.params.settings)
+    upstream = [meta.get("provenance", {}), cool_meta.get("provenance", {})]
     prov = stage_provenance("population_age", smk.params.settings, [smk.input.stars, smk.input.cooling],
-                            models=summary["models"], upstream=[meta.get("provenance", {}), cool_meta.get("provenance", {})])
+                            models=summary["models"], upstream=upstream)
     write_stage(model, smk.output.model, MODEL_COLUMNS, prov, "population_age")
     write_stage(profile, smk.output.profile, PROFILE_COLUMNS, prov, "population_age")
     write_json(summary | {"settings": smk.params.settings}, smk.output.fit)

@@ -114,7 +114,9 @@ def cmd_tracks(mass_radius, photometry, colour, band, masses_msun, age_yr=None, 
         absmag = unit_mag(band, teff) - 5.0 * np.log10(r * R_SUN_M / (10.0 * PC_M))
         col = unit_mag(colour[0], teff) - unit_mag(colour[1], teff)
         logl = np.log10(4 * np.pi * (r * R_SUN_M) ** 2 * SIGMA_SB_SI * teff**4 / L_SUN_W)
-        ages = np.asarray(age_yr(np.full(teff.shape, grid_m[j]), logl), dtype=float) if age_yr else np.full(teff.shape, np.nan)
+        ages = np.full(teff.shape, np.nan)
+        if age_yr is not None:
+            ages = np.asarray(age_yr(np.full(teff.shape, grid_m[j]), logl), dtype=float)
         ok = np.isfinite(absmag) & np.isfinite(col)
         tracks.append({"mass_msun": float(grid_m[j]), "colour": col[ok], "absmag": absmag[ok], "teff_k": teff[ok],
                        "age_yr": ages[ok]})
@@ -367,7 +369,7 @@ def age_fit(fit, profile, stem):
             lo68, hi68 = fit["interval68_gyr"]
             a2.axvspan(lo68, hi68, color=AMBER, alpha=0.3, lw=0, zorder=0, label=f"68 %: {lo68:.2f}$-${hi68:.2f} Gyr")
             a2.axvline(best, color=BRICK, lw=1.4, label=f"best fit {best:.2f} Gyr")
-            a2.legend(frameon=False)
+            a2.legend(frameon=True, framealpha=0.9, loc="upper left")
         else:
             _note(a2, "no bootstrap resamples were requested")
         a2.set_xlabel("population age T (Gyr)")

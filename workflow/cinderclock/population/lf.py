@@ -138,7 +138,8 @@ def bootstrap_lf_error(mbol, inv_vmax, edges, n_boot, seed):
     w = np.asarray(inv_vmax, dtype=float)
     ok = (k >= 0) & np.isfinite(w)
     n_total = int(np.sum(np.isfinite(w)))
-    _, sums = bootstrap_bin_sums(k[ok], w[ok], max(n_total, 1), edges.size - 1, int(n_boot), np.random.default_rng(seed))
+    rng = np.random.default_rng(seed)
+    _, sums = bootstrap_bin_sums(k[ok], w[ok], max(n_total, 1), edges.size - 1, int(n_boot), rng)
     if n_boot < 2:
         return np.full(edges.size - 1, np.nan)
     return sums.std(axis=0, ddof=1) / np.diff(edges)

@@ -112,8 +112,8 @@ class PopulationModel:
         lo, hi = mass_range_msun if mass_range_msun is not None else self.ifmr.initial_range
         r_lo, r_hi = self.ifmr.initial_range
         if not (r_lo - 1e-9 <= lo < hi <= r_hi + 1e-9):
-            raise ConfigError(f"population.imf.mass_range_msun: [{lo}, {hi}] must lie inside the calibrated initial-mass "
-                              f"range [{r_lo}, {r_hi}] of the IFMR {self.ifmr.key}")
+            raise ConfigError(f"population.imf.mass_range_msun: [{lo}, {hi}] must lie inside the calibrated "
+                              f"initial-mass range [{r_lo}, {r_hi}] of the IFMR {self.ifmr.key}")
         self.mass_range_msun = (float(lo), float(hi))
         self.max_cooling_age_yr = float(max_cooling_age_yr)
 
@@ -190,8 +190,8 @@ class PopulationModel:
         edges = np.asarray(mbol_edges, dtype=float)
         ages = np.atleast_1d(np.asarray(ages_gyr, dtype=float))
         if np.any(ages * 1e9 > self.max_cooling_age_yr):
-            raise ConfigError(f"population ages up to {ages.max()} Gyr exceed the tabulated {self.max_cooling_age_yr / 1e9} "
-                              "Gyr of cooling")
+            raise ConfigError(f"population ages up to {ages.max()} Gyr exceed the tabulated "
+                              f"{self.max_cooling_age_yr / 1e9} Gyr of cooling")
         keep = self.weight > 0
         tau = self.progenitor_lifetime_gyr[keep, None] + self.cooling_age_at_mbol_gyr(edges)[keep]   # (n, K+1)
         w = self.weight[keep]

@@ -21,8 +21,10 @@ STAR_COLUMNS = {
     "mbol": Column("mag", "Absolute bolometric magnitude (IAU 2015 B2 scale)", "phys.magAbs.bol"),
     "dist_pc": Column("pc", "Distance (inverse corrected parallax)", "pos.distance"),
     "mag_survey": Column("mag", "Apparent magnitude in the survey's selection band", "phot.mag"),
-    "d_min_pc": Column("pc", "Nearest distance at which the star would pass the survey limits", "pos.distance;stat.min"),
-    "d_max_pc": Column("pc", "Farthest distance at which the star would pass the survey limits", "pos.distance;stat.max"),
+    "d_min_pc": Column("pc", "Nearest distance at which the star would pass the survey limits",
+                       "pos.distance;stat.min"),
+    "d_max_pc": Column("pc", "Farthest distance at which the star would pass the survey limits",
+                       "pos.distance;stat.max"),
     "vmax_pc3": Column("pc3", "Maximum (effective) volume in which the star would enter the sample", ""),
     "v_over_vmax": Column("", "Volume out to the star's distance divided by its maximum volume", "stat.value"),
     "vmax_limit": Column("", "Survey limit that sets d_max (0 magnitude, 1 parallax S/N, 2 proper motion, "

@@ -120,9 +120,9 @@ def render(counts, provenance, config, lf_summary, fit_summary, title="cinderclo
     parts.append(_table(["stars", "number"], [(k.replace("_", " "), v) for k, v in st.items()], numeric=(1,)))
     vv = lf_summary.get("v_over_vmax", {})
     nan = float("nan")
-    parts.append("<p>&lt;V/V<sub>max</sub>&gt; = {:.4f} over {} stars; a complete sample spread uniformly through its "
-                 "volume gives 0.5 &plusmn; {:.4f} (1/&radic;(12N)), so the deviation is {:+.1f} &sigma;. Space density in "
-                 "the binned range: {:.3g} pc<sup>-3</sup>.</p>".format(
+    parts.append("<p>&lt;V/V<sub>max</sub>&gt; = {:.4f} over {} stars; a complete sample spread uniformly through "
+                 "its volume gives 0.5 &plusmn; {:.4f} (1/&radic;(12N)), so the deviation is {:+.1f} &sigma;. Space "
+                 "density in the binned range: {:.3g} pc<sup>-3</sup>.</p>".format(
                      vv.get("mean") if vv.get("mean") is not None else nan, vv.get("n", 0),
                      vv.get("sigma") if vv.get("sigma") is not None else nan,
                      vv.get("z") if vv.get("z") is not None else nan,
