@@ -7,8 +7,7 @@ def body(smk):
     from cinderclock.population.stages import LF_COLUMNS, STAR_COLUMNS, luminosity_function_stage
     from cinderclock.tableio import read_table
 
-    needed = None  # all columns: the survey band, positions and proper motions depend on the settings
-    table, _, meta = read_table(smk.input.table, columns=needed)
+    table, _, meta = read_table(smk.input.table)   # all columns: which ones are needed depends on the settings
     stars, lf, summary = luminosity_function_stage(table, smk.params.settings)
     prov = stage_provenance("luminosity_function", smk.params.settings, [smk.input.table],
                             upstream=[meta.get("provenance", {})])
