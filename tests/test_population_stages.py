@@ -214,3 +214,13 @@ def test_too_few_stars_give_no_fit_and_the_figures_say_so(final_table, settings,
     written = figures.luminosity_function(lf, tmp_path / "lf", model=model, fit=fit)
     written += figures.age_fit(fit, profile, tmp_path / "fit")
     assert all(p.exists() for p in written)
+
+
+def test_progenitor_choices_fall_back_to_the_progenitor_section():
+    # internal check of the configuration rule: population.* first, then progenitor.*, then defaults
+    from cinderclock.population.model import progenitor_choices
+
+    pop = {"ifmr": None, "lifetime": "rule_of_thumb", "metallicity": None}
+    assert progenitor_choices(pop, {"ifmr": "catalan2008", "lifetime": "hurley2000"}) == \
+        {"ifmr": "catalan2008", "lifetime": "rule_of_thumb", "metallicity": 0.02}
+    assert progenitor_choices(pop, None)["ifmr"] == "cummings2018_mist"

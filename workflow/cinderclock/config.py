@@ -25,7 +25,7 @@ STAGE_SECTIONS = {
     "mass": ("mass",),
     "cooling_model": ("cooling",),
     "cooling": ("cooling",),
-    "population": ("population", "select", "luminosity"),
+    "population": ("population", "select", "luminosity", "progenitor"),
 }
 
 

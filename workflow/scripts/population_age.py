@@ -21,8 +21,9 @@ def body(smk):
     if summary["age_gyr"] is None:
         log.warning("%s", summary["cautions"][0])
     else:
-        log.info("population age %.3f Gyr (68 %%: %s - %s) from %d stars", summary["age_gyr"],
-                 *summary["interval68_gyr"], summary["n_stars_in_fit"])
+        lo, hi = (f"{v:.3f}" if v is not None else "n/a" for v in summary["interval68_gyr"])
+        log.info("population age %.3f Gyr (68 %%: %s - %s) from %d stars", summary["age_gyr"], lo, hi,
+                 summary["n_stars_in_fit"])
 
 
 run(snakemake, body)  # noqa: F821

@@ -219,9 +219,26 @@ class PopulationModel:
         return [self.imf.as_model(), self.ifmr.as_model(), self.lifetime.as_model()]
 
 
-def model_from_settings(population, cooling_link):
-    """A :class:`PopulationModel` from the ``population`` configuration section and a cooling link."""
+#: Progenitor choices used when neither the ``population`` nor the ``progenitor`` section sets them.
+PROGENITOR_DEFAULTS = {"ifmr": "cummings2018_mist", "lifetime": "hurley2000", "metallicity": 0.02}
+
+
+def progenitor_choices(population, progenitor=None):
+    """IFMR, lifetime and metallicity: ``population.*`` if set, else ``progenitor.*`` (the total-age
+    stage's choices), else :data:`PROGENITOR_DEFAULTS`."""
+    progenitor = progenitor or {}
+    out = {}
+    for key, default in PROGENITOR_DEFAULTS.items():
+        value = population.get(key)
+        out[key] = value if value is not None else progenitor.get(key, default)
+    return out
+
+
+def model_from_settings(population, cooling_link, progenitor=None):
+    """A :class:`PopulationModel` from the ``population`` (and ``progenitor``) configuration sections
+    and a cooling link."""
     imf = population.get("imf") or {}
-    return PopulationModel(cooling_link.log_lum_at_age, ifmr=population.get("ifmr", "cummings2018_mist"),
-                           lifetime=population.get("lifetime", "hurley2000"), imf=imf.get("kind", "salpeter"),
-                           mass_range_msun=imf.get("mass_range_msun"), metallicity=population.get("metallicity", 0.02))
+    choice = progenitor_choices(population, progenitor)
+    return PopulationModel(cooling_link.log_lum_at_age, ifmr=choice["ifmr"], lifetime=choice["lifetime"],
+                           imf=imf.get("kind", "salpeter"), mass_range_msun=imf.get("mass_range_msun"),
+                           metallicity=choice["metallicity"])

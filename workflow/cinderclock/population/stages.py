@@ -164,7 +164,7 @@ def population_age_stage(stars, cooling_link, settings):
     cooling_link : CoolingLink
         The cooling model of the run.
     settings : dict
-        ``{"population": ...}``.
+        ``{"population": ..., "progenitor": ...}`` (the progenitor section is optional).
 
     Returns
     -------
@@ -188,7 +188,7 @@ def population_age_stage(stars, cooling_link, settings):
         raise ConfigError(f"population.fit.mbol_range: [{lo}, {hi}] covers fewer than two luminosity-function bins")
     ages = age_grid_from_settings(pop["fit"]["age_grid"])
     sfh = sfh_from_settings(pop["sfh"])
-    model = model_from_settings(pop, cooling_link)
+    model = model_from_settings(pop, cooling_link, settings.get("progenitor"))
     used = stars["lf_status"].to_numpy() == 0
     mbol = stars["mbol"].to_numpy(dtype=float)[used]
     inv = 1.0 / stars["vmax_pc3"].to_numpy(dtype=float)[used]
