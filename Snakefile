@@ -5,6 +5,8 @@ from cinderclock.config import check_config
 configfile: "config/config.yaml"
 check_config(config)  # JSON Schema validation with defaults (workflow/schemas/config.schema.yaml)
 
+report: "workflow/report/workflow.rst"
+
 include: "workflow/rules/common.smk"
 include: "workflow/rules/ingest.smk"
 include: "workflow/rules/models.smk"
@@ -15,6 +17,7 @@ include: "workflow/rules/cooling.smk"
 include: "workflow/rules/uncertainty.smk"
 include: "workflow/rules/final.smk"
 include: "workflow/rules/handoff.smk"
+include: "workflow/rules/population.smk"
 
 
 rule all:
@@ -22,3 +25,6 @@ rule all:
     input:
         rules.final.output,
         rules.handoff.output,
+        rules.population_age.output,
+        rules.figures.output,
+        rules.run_summary.output,

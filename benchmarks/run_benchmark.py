@@ -7,7 +7,7 @@ draws, 125,000 rows per shard, 2 cores). The script prints, per stage: wall time
 jobs (from Snakemake's benchmark files), the largest resident memory of any of its jobs, rows per
 second, and the ratio to an I/O floor measured in the same run: reading the stage's input Parquet
 tables and writing them back with pyarrow, with no computation. It then measures a rerun with
-nothing to do on a 64-shard run.
+nothing to do on a 64-shard run, and runs the tests marked slow (kept out of the quick suite).
 
     python benchmarks/run_benchmark.py                     # 1e4, 1e5, 1e6
     python benchmarks/run_benchmark.py --sizes 10000 100000 --keep /tmp/cc-bench
@@ -109,6 +109,7 @@ def main(argv=None):
     ap.add_argument("--rows-per-shard", type=int, default=125_000)
     ap.add_argument("--draws", type=int, default=100)
     ap.add_argument("--keep", type=Path, default=None, help="keep the scratch folders here")
+    ap.add_argument("--skip-slow-tests", action="store_true", help="do not run the tests marked slow")
     args = ap.parse_args(argv)
     base = args.keep or Path(tempfile.mkdtemp(prefix="cinderclock-bench-"))
     print(f"machine: {machine()}")
@@ -148,6 +149,14 @@ def main(argv=None):
     snakemake(wd)
     t = snakemake(wd)
     print(f"\nrerun with nothing to do, 64 shards: {t:.2f} s")
+
+    # the long checks kept out of the quick test suite (kill -9 mid-run, full hand-off run)
+    if not args.skip_slow_tests:
+        t0 = time.perf_counter()
+        out = subprocess.run([sys.executable, "-m", "pytest", "-q", "-m", "slow", str(ROOT / "tests")],
+                             capture_output=True, text=True, cwd=ROOT)
+        last = out.stdout.strip().splitlines()[-1] if out.stdout.strip() else out.stderr[-500:]
+        print(f"slow tests (pytest -m slow): {last} [{time.perf_counter() - t0:.0f} s]")
     if not args.keep:
         shutil.rmtree(base, ignore_errors=True)
 

@@ -441,8 +441,10 @@ def test_vega_band_without_published_zero_points(config):
 
 
 @pytest.mark.parametrize("edit,needles", [
-    (lambda c: c["luminosity"].__setitem__("teff_colour", ["B", "RP"]), ["luminosity.teff_colour", "'B'", "G, BP, RP"]),
-    (lambda c: c["luminosity"].__setitem__("bolometric_band", "V"), ["luminosity.bolometric_band", "'V'"]),
+    (lambda c: c["population"]["figures"].__setitem__("cmd", {"colour": ["B", "RP"], "magnitude": "G"}),
+     ["population.figures.cmd.colour", "'B'", "G, BP, RP"]),
+    (lambda c: c["population"]["figures"].__setitem__("cmd", {"colour": ["BP", "RP"], "magnitude": "V"}),
+     ["population.figures.cmd.magnitude", "'V'"]),
     (lambda c: c["select"]["max_mag_error"].__setitem__("g", 0.1), ["select.max_mag_error", "'g'"]),
     (lambda c: c["select"]["wd_region"].__setitem__("magnitude", "Gmag"), ["select.wd_region.magnitude"]),
     (lambda c: c["select"]["quality_cuts"].append({"column": "ruwe", "max": 1.4}),

@@ -121,3 +121,14 @@ def test_model_spread_column(base):
     res = run_chain(cat, cfg2).table
     assert "cool_age_spread_gyr" in res
     assert (res["cool_age_spread_gyr"].dropna() >= 0).all() and res["cool_age_spread_gyr"].notna().mean() > 0.9
+
+
+def test_absolute_magnitudes_follow_the_parallax(base):
+    # M = m + 5 log10(parallax / mas) - 10 (definition of the distance modulus with d = 1000/parallax pc)
+    cfg, models = base
+    cat, _ = consistent_catalogue(models, 100, seed=43, snr=(20.0, 60.0))
+    res = run_chain(cat, cfg, models).table
+    inv = res["dist_method"] == "inverse_parallax"
+    expect = res["mag_G"] + 5 * np.log10(res["plx_corr_mas"]) - 10
+    assert inv.mean() > 0.9
+    assert np.allclose(res.loc[inv, "absmag_G"], expect[inv], atol=1e-9)

@@ -26,6 +26,7 @@ STAGE_SECTIONS = {
     "cooling_model": ("cooling",),
     "cooling": ("cooling", "progenitor"),
     "uncertainty": ("uncertainty", "progenitor"),
+    "population": ("population", "select", "luminosity", "progenitor", "bands"),
 }
 
 
@@ -148,9 +149,10 @@ def check_references(config):
             raise ConfigError(f"config key 'bands.{key}.system': no published Vega zero point for {name!r}; use "
                               f"'ab' or one of: {', '.join(vega)}")
     allowed = ", ".join(bands)
-    lum = config.get("luminosity", {})
-    uses = [("luminosity.bolometric_band", lum.get("bolometric_band"))]
-    uses += [("luminosity.teff_colour", b) for b in lum.get("teff_colour", [])]
+    cmd = ((config.get("population") or {}).get("figures") or {}).get("cmd") or {}
+    uses = [("population.figures.cmd.colour", b) for b in cmd.get("colour", [])]
+    if cmd:
+        uses.append(("population.figures.cmd.magnitude", cmd.get("magnitude")))
     sel = config.get("select", {}) or {}
     uses += [("select.max_mag_error", b) for b in (sel.get("max_mag_error") or {})]
     region = sel.get("wd_region") or {}

@@ -102,9 +102,9 @@ def luminosity(table, settings, grid):
     out["dist_method"] = d["method"].astype(object)
     bits = set_flag(bits, "distance_from_prior", d["method"] == "edsd_mode")
     with np.errstate(divide="ignore", invalid="ignore"):
-        dm = 5 * np.log10(d["distance_pc"]) - 5.0
+        dm = 5 * np.log10(d["distance_pc"]) - 5.0          # distance modulus m - M
     for band in bands:
-        out[f"absmag_{band}"] = out[C.mag_column(band)].to_numpy(float) + dm
+        out[f"absmag_{band}"] = out[C.mag_column(band)].to_numpy(float) - dm
 
     ext = lum["extinction"]
     if ext["mode"] == "none":

@@ -1,0 +1,168 @@
+"""The run summary page of the report: stage counts, population results, models and references,
+and the configuration, as one self-contained HTML file (no scripts, no external resources)."""
+
+from __future__ import annotations
+
+import html
+import json
+
+_CSS = """
+body { font-family: "DejaVu Sans", Helvetica, Arial, sans-serif; color: #22313f; margin: 1.5em 2em;
+       max-width: 62em; line-height: 1.4; }
+h1 { font-size: 1.45em; border-bottom: 3px solid #1f7a8c; padding-bottom: 0.2em; }
+h2 { font-size: 1.15em; color: #1f7a8c; margin-top: 1.6em; }
+table { border-collapse: collapse; margin: 0.4em 0 1em 0; font-size: 0.92em; }
+th, td { border: 1px solid #c9d6df; padding: 0.25em 0.7em; text-align: left; vertical-align: top; }
+th { background: #eef3f6; }
+td.num { text-align: right; font-variant-numeric: tabular-nums; }
+.caution { background: #fbf3e6; border-left: 4px solid #e09f3e; padding: 0.4em 0.8em; margin: 0.4em 0; }
+pre { background: #f4f6f8; border: 1px solid #c9d6df; padding: 0.8em; font-size: 0.85em; overflow-x: auto; }
+"""
+
+
+def _e(x):
+    return html.escape(str(x))
+
+
+def _table(header, rows, numeric=()):
+    out = ["<table>", "<tr>" + "".join(f"<th>{_e(h)}</th>" for h in header) + "</tr>"]
+    for r in rows:
+        cells = []
+        for i, v in enumerate(r):
+            cls = ' class="num"' if i in numeric else ""
+            cells.append(f"<td{cls}>{_e(v)}</td>")
+        out.append("<tr>" + "".join(cells) + "</tr>")
+    out.append("</table>")
+    return "\n".join(out)
+
+
+def collect_models(provenance, extra=()):
+    """Model entries of every stage in a provenance block plus ``extra``, without duplicates.
+
+    Returns
+    -------
+    list of (stage, dict)
+    """
+    seen = set()
+    out = []
+    for stage, entry in sorted((provenance or {}).get("stages", {}).items()):
+        for m in entry.get("models", []):
+            key = (m.get("name"), m.get("reference"))
+            if key not in seen:
+                seen.add(key)
+                out.append((stage, m))
+    for m in extra:
+        key = (m.get("name"), m.get("reference"))
+        if key not in seen:
+            seen.add(key)
+            out.append(("population", m))
+    return out
+
+
+def _pair(v):
+    """'a - b' for a two-number interval (None shown as n/a)."""
+    v = list(v or [None, None])
+    return " - ".join("n/a" if x is None else f"{x:.3f}" for x in v[:2])
+
+
+def _fmt(v, digits=3):
+    if v is None:
+        return "n/a"
+    if isinstance(v, float):
+        return f"{v:.{digits}g}" if abs(v) < 1e-2 or abs(v) >= 1e5 else f"{v:.{digits}f}"
+    return v
+
+
+def render(counts, provenance, config, lf_summary, fit_summary, title="cinderclock run summary"):
+    """HTML text of the run summary.
+
+    Parameters
+    ----------
+    counts : dict
+        ``results/final/stage_counts.json``.
+    provenance : dict
+        Provenance block of the final per-star table.
+    config : dict
+        The validated configuration.
+    lf_summary, fit_summary : dict
+        Summaries written by the luminosity-function and population-age rules.
+    """
+    import yaml
+
+    reasons = (provenance or {}).get("reasons", {})
+    parts = [f"<!doctype html><html lang='en'><head><meta charset='utf-8'><title>{_e(title)}</title>",
+             f"<style>{_CSS}</style></head><body>", f"<h1>{_e(title)}</h1>"]
+    parts.append("<p>Catalogue <code>{}</code> (SHA-256 <code>{}</code>), cinderclock {}, configuration hash "
+                 "<code>{}</code>.</p>".format(_e(provenance.get("catalogue", config.get("catalogue", {}).get("path"))),
+                                               _e(str(provenance.get("catalogue_sha256", ""))[:16] + "\u2026"),
+                                               _e(provenance.get("package_version", "?")),
+                                               _e(str(provenance.get("config_hash", ""))[:16] + "\u2026")))
+
+    parts.append("<h2>Stage counts</h2>")
+    rows = [("rows read", counts.get("rows_read")), ("rows in the results", counts.get("rows_in_results")),
+            ("rows rejected", counts.get("rows_rejected")), ("shards", counts.get("shards"))]
+    parts.append(_table(["quantity", "rows"], rows, numeric=(1,)))
+    kept = counts.get("kept_after_stage", {})
+    rej = counts.get("rejected_by_stage", {})
+    parts.append(_table(["stage", "kept after the stage", "rejected by the stage"],
+                        [(s, kept[s], rej.get(s, 0)) for s in kept], numeric=(1, 2)))
+    by_reason = counts.get("rejected_by_reason", {})
+    if by_reason:
+        parts.append("<p>Rejected rows by reason:</p>")
+        rows = []
+        for key, n in sorted(by_reason.items()):
+            stage, _, reason = key.partition("/")
+            rows.append((stage, reason, n, reasons.get(reason, "")))
+        parts.append(_table(["stage", "reason", "rows", "meaning"], rows, numeric=(2,)))
+
+    parts.append("<h2>Luminosity function</h2>")
+    st = lf_summary.get("status_counts", {})
+    parts.append(_table(["stars", "number"], [(k.replace("_", " "), v) for k, v in st.items()], numeric=(1,)))
+    vv = lf_summary.get("v_over_vmax", {})
+    nan = float("nan")
+    parts.append("<p>&lt;V/V<sub>max</sub>&gt; = {:.4f} over {} stars; a complete sample spread uniformly through "
+                 "its volume gives 0.5 &plusmn; {:.4f} (1/&radic;(12N)), so the deviation is {:+.1f} &sigma;. Space "
+                 "density in the binned range: {:.3g} pc<sup>-3</sup>.</p>".format(
+                     vv.get("mean") if vv.get("mean") is not None else nan, vv.get("n", 0),
+                     vv.get("sigma") if vv.get("sigma") is not None else nan,
+                     vv.get("z") if vv.get("z") is not None else nan,
+                     lf_summary.get("space_density_pc3") or nan))
+    lim = lf_summary.get("limits", {})
+    parts.append(_table(["survey limit", "value"], [(k, "none" if v is None else v) for k, v in lim.items()]))
+
+    parts.append("<h2>Population age</h2>")
+    if fit_summary:
+        edges = fit_summary.get("fit_edges_mbol") or []
+        rows = [("best-fit age (Gyr)", _fmt(fit_summary.get("age_gyr"))),
+                ("68 % bootstrap interval (Gyr)", _pair(fit_summary.get("interval68_gyr"))),
+                ("95 % bootstrap interval (Gyr)", _pair(fit_summary.get("interval95_gyr"))),
+                ("profile-likelihood interval, delta ln L = 0.5 (Gyr)",
+                 _pair(fit_summary.get("likelihood_interval_gyr"))),
+                ("bootstrap resamples", fit_summary.get("bootstrap_resamples")),
+                ("stars in the fitted range", fit_summary.get("n_stars_in_fit")),
+                ("fitted M_bol range (mag)", f"{edges[0]:g} - {edges[-1]:g}" if edges else ""),
+                ("Poisson deviance / degrees of freedom", f"{_fmt(fit_summary.get('deviance'))} / "
+                                                         f"{fit_summary.get('dof')}"),
+                ("progenitor birth rate (pc^-3 Gyr^-1)", _fmt(fit_summary.get("amplitude_per_pc3_per_gyr"))),
+                ("white-dwarf density of the model (pc^-3)", _fmt(fit_summary.get("white_dwarf_density_pc3"))),
+                ("star-formation history", fit_summary.get("sfh", {}).get("name")),
+                ("cooling model", fit_summary.get("cooling_model"))]
+        parts.append(_table(["quantity", "value"], rows))
+        for c in fit_summary.get("cautions", []):
+            parts.append(f"<div class='caution'>{_e(c)}</div>")
+    else:
+        parts.append("<p>No population-age fit in this run.</p>")
+
+    parts.append("<h2>Models and references</h2>")
+    rows = []
+    for stage, m in collect_models(provenance, (fit_summary or {}).get("models", [])):
+        rows.append((stage, m.get("name", ""), m.get("reference", ""), m.get("caution", m.get("note", ""))))
+    parts.append(_table(["stage", "model", "reference", "caution"], rows))
+    parts.append("<p>Method references: 1/V<sub>max</sub> estimator, Schmidt, M. 1968, ApJ 151, 393; proper-motion "
+                 "limits, Schmidt, M. 1975, ApJ 202, 22; effective volumes, Felten, J. E. 1976, ApJ 207, 700 and "
+                 "Stobie, R. S., Ishida, K. &amp; Peacock, J. A. 1989, MNRAS 238, 709.</p>")
+
+    parts.append("<h2>Configuration</h2>")
+    parts.append(f"<pre>{_e(yaml.safe_dump(json.loads(json.dumps(config, default=str)), sort_keys=False))}</pre>")
+    parts.append("</body></html>")
+    return "\n".join(parts)
