@@ -33,7 +33,7 @@ import pyarrow.parquet as pq
 import yaml
 
 ROOT = Path(__file__).resolve().parents[1]
-STAGES = ["ingest", "select", "luminosity", "mass", "cooling", "uncertainty", "final"]
+STAGES = ["ingest", "select", "luminosity", "mass", "cooling", "uncertainty", "final", "handoff"]
 #: stage -> glob of its main input tables, relative to the results folder
 STAGE_INPUTS = {"ingest": None, "select": "ingest/shards/*.parquet", "luminosity": "select/s*[0-9].parquet",
                 "mass": "luminosity/s*[0-9].parquet", "cooling": "mass/*.parquet",
@@ -96,10 +96,11 @@ def stage_figures(results):
             continue
         b = pd.concat([pd.read_csv(f, sep="\t") for f in files])
         rows[stage] = {"jobs": len(files), "seconds": float(b["s"].sum()), "max_rss_mb": float(b["max_rss"].max())}
-    models = glob.glob(str(results / "benchmarks" / "models" / "*.tsv"))
-    if models:
-        b = pd.concat([pd.read_csv(f, sep="\t") for f in models])
-        rows["models"] = {"jobs": len(models), "seconds": float(b["s"].sum()), "max_rss_mb": float(b["max_rss"].max())}
+    for group in ("models", "population"):
+        files = glob.glob(str(results / "benchmarks" / group / "*.tsv"))
+        if files:
+            b = pd.concat([pd.read_csv(f, sep="\t") for f in files])
+            rows[group] = {"jobs": len(files), "seconds": float(b["s"].sum()), "max_rss_mb": float(b["max_rss"].max())}
     return rows
 
 

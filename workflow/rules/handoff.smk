@@ -14,6 +14,8 @@ rule handoff:
         dictionary=f"{R}/final/data_dictionary.md",
     log:
         f"{R}/logs/final/handoff.log",
+    benchmark:
+        f"{R}/benchmarks/handoff.tsv",
     params:
         settings={},
     threads: 1

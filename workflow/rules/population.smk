@@ -10,6 +10,8 @@ rule luminosity_function:
         summary=f"{R}/population/luminosity_function.json",
     log:
         f"{R}/logs/population/luminosity_function.log",
+    benchmark:
+        f"{R}/benchmarks/population/luminosity_function.tsv",
     params:
         settings=settings("population"),
     threads: 1
@@ -27,6 +29,8 @@ rule population_age:
         profile=f"{R}/population/age_profile.parquet",
     log:
         f"{R}/logs/population/population_age.log",
+    benchmark:
+        f"{R}/benchmarks/population/population_age.tsv",
     params:
         settings=settings("population"),
     threads: 1
@@ -58,6 +62,8 @@ rule figures:
         fit_pdf=f"{R}/figures/age_fit.pdf",
     log:
         f"{R}/logs/population/figures.log",
+    benchmark:
+        f"{R}/benchmarks/population/figures.tsv",
     params:
         settings=settings("population"),
     threads: 1
@@ -75,6 +81,8 @@ rule run_summary:
         report(f"{R}/report/run_summary.html", caption="../report/run_summary.rst", category="Run summary"),
     log:
         f"{R}/logs/population/run_summary.log",
+    benchmark:
+        f"{R}/benchmarks/population/run_summary.tsv",
     params:
         config=config,
     threads: 1
