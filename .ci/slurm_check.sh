@@ -14,7 +14,7 @@
 #   CINDERCLOCK_SLURM_STATE    folder for the cluster's configuration, spool, daemon logs and the
 #                              workflow's working folder (wiped at start; left for inspection)
 #                              [/tmp/cinderclock-slurm-check]
-#   CINDERCLOCK_SLURM_TIMEOUT  seconds the workflow may run before it is interrupted (SIGINT) [420]
+#   CINDERCLOCK_SLURM_TIMEOUT  seconds the workflow may run before it is interrupted (SIGINT) [900]
 #   CINDERCLOCK_PYTHON         Python interpreter with cinderclock's dependencies [python3]
 #
 # The cluster (facts of Debian 12's SLURM 22.05 on a machine without cgroups or systemd):
@@ -27,7 +27,7 @@ set -euo pipefail
 
 ROOT=$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)
 STATE=${CINDERCLOCK_SLURM_STATE:-/tmp/cinderclock-slurm-check}
-TIME_LIMIT=${CINDERCLOCK_SLURM_TIMEOUT:-420}
+TIME_LIMIT=${CINDERCLOCK_SLURM_TIMEOUT:-900}
 PY=${CINDERCLOCK_PYTHON:-python3}
 WORK=$STATE/work
 MARKER="# cinderclock slurm_check.sh: one-node loopback cluster"
