@@ -1,45 +1,23 @@
 """Ingest: formats, column mapping, units, and row-level vetting with reason codes."""
 
 import numpy as np
-import pandas as pd
 import pytest
 
 from cinderclock.catalogue import read_catalogue
 from cinderclock.config import stage_settings
 from cinderclock.errors import InputError
 from cinderclock.stages.ingest import load_and_ingest, wanted_columns
-
-
-def _frame(n=6):
-    return pd.DataFrame({
-        "lf_source": np.arange(100, 100 + n), "ra_icrs": np.linspace(10, 20, n), "dec_icrs": np.zeros(n),
-        "plx": np.full(n, 10.0), "plx_e": np.full(n, 0.1), "pm_ra": np.zeros(n), "pm_dec": np.zeros(n),
-        "g_mag": np.full(n, 15.0), "g_mag_e": np.full(n, 0.01), "bp_mag": np.full(n, 15.1),
-        "bp_mag_e": np.full(n, 0.02), "rp_mag": np.full(n, 14.9), "rp_mag_e": np.full(n, 0.02),
-        "teff_sp": np.full(n, 12000.0), "teff_sp_e": np.full(n, 200.0), "logg_sp": np.full(n, 8.0),
-        "logg_sp_e": np.full(n, 0.05), "ruwe_lf": np.ones(n)})
-
-
-def _ingest_file(tmp_path, df, config, name="cat.csv", text=None):
-    path = tmp_path / name
-    if text is not None:
-        path.write_text(text)
-    elif name.endswith(".csv"):
-        df.to_csv(path, index=False)
-    elif name.endswith(".parquet"):
-        df.to_parquet(path, index=False)
-    config["catalogue"]["path"] = str(path)
-    return load_and_ingest(stage_settings(config, "ingest"))
+from helpers import frame, ingest_file
 
 
 def test_row_faults_become_reason_coded_rejects(tmp_path, config):
-    df = _frame(8).astype({"plx": object, "g_mag": object})
+    df = frame(8).astype({"plx": object, "g_mag": object})
     df.loc[1, "plx"] = "pending"          # text in a numeric column
     df.loc[2, "plx"] = np.nan             # missing required value
     df.loc[3, "plx_e"] = -0.1             # impossible uncertainty
     df.loc[4, "lf_source"] = df.loc[0, "lf_source"]   # repeated identifier
     df.loc[5, "g_mag"] = 99.0             # sentinel: band dropped, row kept
-    table, rejects, _ = _ingest_file(tmp_path, df, config)
+    table, rejects, _ = ingest_file(tmp_path, df, config)
     got = dict(zip(rejects["input_row"], rejects["reason"]))
     assert got == {1: "not_a_number", 2: "nonfinite_required", 3: "bad_parallax_error", 4: "duplicate_id"}
     assert len(table) + len(rejects) == 8                  # nothing lost
@@ -48,19 +26,19 @@ def test_row_faults_become_reason_coded_rejects(tmp_path, config):
 
 
 def test_malformed_csv_rows_are_rejected_with_their_position(tmp_path, config):
-    df = _frame(4)
+    df = frame(4)
     lines = df.to_csv(index=False).splitlines()
     lines[2] = ",".join(lines[2].split(",")[:5])          # data row 1 cut short
-    table, rejects, _ = _ingest_file(tmp_path, df, config, text="\n".join(lines) + "\n")
+    table, rejects, _ = ingest_file(tmp_path, df, config, text="\n".join(lines) + "\n")
     assert rejects["reason"].tolist() == ["malformed_row"]
     assert rejects["input_row"].tolist() == [1]
     assert table["input_row"].tolist() == [0, 2, 3]
 
 
 def test_out_of_range_spectroscopy_is_ignored_and_flagged(tmp_path, config):
-    df = _frame(3)
+    df = frame(3)
     df.loc[1, "teff_sp"] = 1e7
-    table, rejects, _ = _ingest_file(tmp_path, df, config)
+    table, rejects, _ = ingest_file(tmp_path, df, config)
     assert len(rejects) == 0
     assert np.isnan(table.loc[1, "teff_spec_k"]) and table.loc[1, "quality_bits"] & 2
 
@@ -69,7 +47,7 @@ def test_out_of_range_spectroscopy_is_ignored_and_flagged(tmp_path, config):
 def test_all_formats_give_the_same_table(tmp_path, config, fmt):
     from astropy.table import Table
 
-    df = _frame(5)
+    df = frame(5)
     path = tmp_path / f"cat.{ {'votable': 'vot'}.get(fmt, fmt)}"
     if fmt == "csv":
         df.to_csv(path, index=False)
@@ -89,7 +67,7 @@ def test_units_from_file_metadata_are_converted(tmp_path, config):
     from astropy import units as u
     from astropy.table import Table
 
-    df = _frame(3)
+    df = frame(3)
     t = Table.from_pandas(df)
     t["plx"] = t["plx"] / 1000.0
     t["plx"].unit = u.arcsec
@@ -109,25 +87,25 @@ def test_units_from_file_metadata_are_converted(tmp_path, config):
 ])
 def test_empty_files_are_clear_errors(tmp_path, config, text, message):
     with pytest.raises(InputError, match=message):
-        _ingest_file(tmp_path, None, config, text=text if text else "")
+        ingest_file(tmp_path, None, config, text=text if text else "")
 
 
 def test_missing_column_names_the_column_and_file(tmp_path, config):
-    df = _frame(3).drop(columns=["plx_e"])
+    df = frame(3).drop(columns=["plx_e"])
     with pytest.raises(InputError, match=r"cat\.csv.*'plx_e'"):
-        _ingest_file(tmp_path, df, config)
+        ingest_file(tmp_path, df, config)
 
 
 def test_text_column_is_a_mapping_error_naming_row_and_column(tmp_path, config):
-    df = _frame(4).astype({"plx": object})
+    df = frame(4).astype({"plx": object})
     df["plx"] = ["a", "b", "c", "1"]
     with pytest.raises(InputError, match=r"row 0, column 'plx'"):
-        _ingest_file(tmp_path, df, config)
+        ingest_file(tmp_path, df, config)
 
 
 def test_truncated_parquet_is_a_clear_error(tmp_path, config):
     path = tmp_path / "cat.parquet"
-    _frame(50).to_parquet(path)
+    frame(50).to_parquet(path)
     path.write_bytes(path.read_bytes()[:200])
     with pytest.raises(InputError, match="not a readable Parquet"):
         read_catalogue(path, wanted_columns(stage_settings(config, "ingest")))
