@@ -3,7 +3,7 @@
 
 For each catalogue size (default 1e4, 1e5, 1e6 rows, generated with the sample generator, no
 faulty rows) the workflow runs in a scratch folder with the default configuration (100 Monte Carlo
-draws, 125,000 rows per shard, 2 cores). The script prints, per stage: wall time summed over its
+draws, 250,000 rows per shard, 2 cores). The script prints, per stage: wall time summed over its
 jobs (from Snakemake's benchmark files), the largest resident memory of any of its jobs, rows per
 second, and the ratio to an I/O floor measured in the same run: reading the stage's input Parquet
 tables and writing them back with pyarrow, with no computation. It then measures a rerun with
@@ -107,7 +107,7 @@ def stage_figures(results):
 def main(argv=None):
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--sizes", type=int, nargs="+", default=[10_000, 100_000, 1_000_000])
-    ap.add_argument("--rows-per-shard", type=int, default=125_000)
+    ap.add_argument("--rows-per-shard", type=int, default=250_000, help="default: the configuration's default")
     ap.add_argument("--draws", type=int, default=100)
     ap.add_argument("--keep", type=Path, default=None, help="keep the scratch folders here")
     ap.add_argument("--skip-slow-tests", action="store_true", help="do not run the tests marked slow")

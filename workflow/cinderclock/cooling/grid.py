@@ -35,8 +35,17 @@ _MAX_COMMON_NODES = 20000
 
 
 def _bracket(nodes, x):
-    """Index i (nodes[i] <= x <= nodes[i+1], clipped) and weight of nodes[i+1] (ascending nodes)."""
-    i = np.clip(np.searchsorted(nodes, x, side="right") - 1, 0, nodes.size - 2)
+    """Index i (nodes[i] <= x <= nodes[i+1], clipped) and weight of nodes[i+1] (ascending nodes).
+
+    Evenly spaced nodes (the default log L grid) are indexed by arithmetic, others by binary search.
+    """
+    step = np.diff(nodes)
+    if nodes.size > 2 and np.allclose(step, step[0], rtol=1e-9, atol=0.0):
+        with np.errstate(invalid="ignore"):
+            k = np.floor((np.asarray(x, dtype=float) - nodes[0]) / step[0])
+        i = np.clip(np.nan_to_num(k, nan=0.0), 0, nodes.size - 2).astype(np.intp)
+    else:
+        i = np.clip(np.searchsorted(nodes, x, side="right") - 1, 0, nodes.size - 2)
     with np.errstate(invalid="ignore"):
         w = (x - nodes[i]) / (nodes[i + 1] - nodes[i])
     return i, w

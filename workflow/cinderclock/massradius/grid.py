@@ -116,6 +116,13 @@ class MassRadiusGrid:
         return cls(piv.index.to_numpy(float), piv.columns.to_numpy(float), piv.to_numpy(float),
                    settings=df.attrs.get("settings"), models=df.attrs.get("models"))
 
+    def fast_inverse(self, kind):
+        """A cached :class:`RegularInverse` of this grid (``kind``: "logg" or "radius")."""
+        cache = self.__dict__.setdefault("_fast", {})
+        if kind not in cache:
+            cache[kind] = RegularInverse(self, kind)
+        return cache[kind]
+
     # ------------------------------------------------------------------ forward ----------------
     def radius(self, mass_msun, teff_k):
         """Radius in Rsun at mass (Msun) and Teff (K); NaN outside the table."""
@@ -218,3 +225,51 @@ class MassRadiusGrid:
             "inside": np.where(use_g, in_g, in_r),
             "route": route,
         }
+
+
+class RegularInverse:
+    """The mass inversion of a :class:`MassRadiusGrid` resampled on a regular (key, log Teff) grid.
+
+    For very many look-ups (Monte Carlo draws) the per-star binary search of
+    :meth:`MassRadiusGrid.mass_from_logg` dominates the cost. This class evaluates that exact
+    inversion once on a fine regular grid of the key (log g, or -log10 R) at the table's Teff
+    columns; each look-up is then index arithmetic and a bilinear interpolation. Nodes where the
+    exact inversion has no mass are NaN, and any NaN corner gives NaN (the valid domain shrinks by
+    at most one fine step at its edges).
+
+    Parameters
+    ----------
+    grid : MassRadiusGrid
+    kind : {"logg", "radius"}
+        Invert log g (cgs) or the radius (Rsun).
+    step : float
+        Spacing of the key axis (dex).
+    """
+
+    def __init__(self, grid, kind="logg", step=0.001):
+        self.grid = grid
+        self.kind = kind
+        keys = grid._logg if kind == "logg" else -grid._log_r
+        lo, hi = np.nanmin(keys), np.nanmax(keys)
+        self.key0, self.step = float(lo), float(step)
+        self.n_key = int(np.ceil((hi - lo) / step)) + 1
+        k = self.key0 + self.step * np.arange(self.n_key)
+        kk, tt = np.meshgrid(k, grid.teff_grid, indexing="ij")
+        stacked = grid._by_logg if kind == "logg" else grid._by_neg_log_r
+        mass, inside = grid._invert(stacked, kk.ravel(), tt.ravel())
+        self.mass = np.where(inside, mass, np.nan).reshape(kk.shape)
+
+    def __call__(self, value, teff_k):
+        """Mass (Msun) at log g (or radius in Rsun) and Teff (K); NaN outside the table."""
+        v = np.asarray(value, dtype=float)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            key = v if self.kind == "logg" else -np.log10(np.where(v > 0, v, np.nan))
+            x = (key - self.key0) / self.step
+            ok = np.isfinite(x) & (x >= 0) & (x <= self.n_key - 1)
+            i = np.clip(np.floor(np.where(ok, x, 0)).astype(np.int64), 0, self.n_key - 2)
+            u = np.where(ok, x, 0) - i
+            j, w, in_t = _bracket(self.grid.log_teff_grid, np.log10(np.asarray(teff_k, dtype=float)))
+            m = self.mass
+            val = ((1 - u) * (1 - w) * m[i, j] + u * (1 - w) * m[i + 1, j]
+                   + (1 - u) * w * m[i, j + 1] + u * w * m[i + 1, j + 1])
+        return np.where(ok & in_t, val, np.nan)
