@@ -58,7 +58,13 @@ def cooling(table, settings, grid, compare=None):
     bits = out[C.FLAGS].to_numpy()
     m = out["mass_msun"].to_numpy(dtype=float)
     logl = out["log_lum"].to_numpy(dtype=float)
-    age_yr, status = grid.age_yr(m, logl)
+    if compare is not None:
+        from ..cooling.spread import model_spread
+
+        both = model_spread(grid, compare, m, logl)
+        age_yr, status = both["age_yr"], both["status"]
+    else:
+        age_yr, status = grid.age_yr(m, logl)
     has_inputs = np.isfinite(m) & np.isfinite(logl)
     bits = set_flag(bits, "cooling_off_table", ~np.isfinite(age_yr))
     bits = set_flag(bits, "cooling_extrapolated", status == STATUS_FAR_FUTURE)
@@ -71,8 +77,7 @@ def cooling(table, settings, grid, compare=None):
     out["cool_age_status"] = np.vectorize(STATUS_NAMES.get, otypes=[object])(status) if len(out) else \
         np.array([], dtype=object)
     if compare is not None:
-        age2, _ = compare.age_yr(m, logl)
-        out["cool_age_spread_gyr"] = np.abs(age2 - age_yr) * _YR_TO_GYR
+        out["cool_age_spread_gyr"] = both["spread_yr"] * _YR_TO_GYR
 
     tot = total_age(m, age_yr, ifmr=prog["ifmr"], lifetime=prog["lifetime"], metallicity=prog["metallicity"])
     f = tot["flags"]

@@ -133,17 +133,15 @@ def luminosity(table, settings, grid):
         rj.reject((logg < grid.logg[0]) | (logg > grid.logg[-1]), "gravity_out_of_range",
                   lambda i: [f"log g = {g:.2f} outside the table's {grid.logg[0]:.2f}-{grid.logg[-1]:.2f}"
                              for g in logg[i]])
-    fit = fit_sed(mags, errs, grid, ebv=ebv, distance_pc=d["distance_pc"], distance_lo_pc=d["distance_lo_pc"],
-                  distance_hi_pc=d["distance_hi_pc"], logg=logg if grid.gravity_dependent else None,
-                  teff_fixed_k=teff_spec, teff_fixed_err_k=teff_spec_err,
-                  error_floor_mag=lum["error_floor_mag"])
+    fit_args = dict(distance_pc=d["distance_pc"], distance_lo_pc=d["distance_lo_pc"], distance_hi_pc=d["distance_hi_pc"],
+                    logg=logg if grid.gravity_dependent else None, teff_fixed_k=teff_spec,
+                    teff_fixed_err_k=teff_spec_err, error_floor_mag=lum["error_floor_mag"])
+    fit = fit_sed(mags, errs, grid, ebv=ebv, **fit_args)
     if ext["mode"] == "column" and "ebv_err_mag" in out and np.any(out["ebv_err_mag"].to_numpy(float) > 0):
         # slopes of the fit with respect to E(B-V), for the Monte Carlo propagation of its error
         step = max(float(lum["extinction"]["ebv_step_mag"]), 1e-3)
         sign = np.where(ebv + step <= grid.ebv[-1], 1.0, -1.0)
-        fit2 = fit_sed(mags, errs, grid, ebv=ebv + sign * step, distance_pc=d["distance_pc"], distance_lo_pc=d["distance_lo_pc"],
-                       distance_hi_pc=d["distance_hi_pc"], logg=logg if grid.gravity_dependent else None,
-                       teff_fixed_k=teff_spec, teff_fixed_err_k=teff_spec_err, error_floor_mag=lum["error_floor_mag"])
+        fit2 = fit_sed(mags, errs, grid, ebv=ebv + sign * step, **fit_args)
         with np.errstate(divide="ignore", invalid="ignore"):
             out["dlogteff_debv"] = (np.log10(fit2["teff_k"]) - np.log10(fit["teff_k"])) / (sign * step)
             out["dlogsa_debv"] = (fit2["log_solid_angle"] - fit["log_solid_angle"]) / (sign * step)

@@ -77,9 +77,12 @@ def mass(table, settings, mr):
     out["radius_ratio"] = check["radius_ratio"]
 
     bits = set_flag(bits, "mass_from_radius", ~by_logg)
-    bits = set_flag(bits, "mass_off_table", ~np.isfinite(m))
-    bits = set_flag(bits, "low_mass", m < cfg["low_mass_msun"])
-    bits = set_flag(bits, "high_mass", m > cfg["high_mass_msun"])
+    from ..massradius.flags import mass_flags
+
+    f = mass_flags(m, np.isfinite(m), cfg["low_mass_msun"], cfg["high_mass_msun"])
+    bits = set_flag(bits, "mass_off_table", f["outside_table"])
+    bits = set_flag(bits, "low_mass", f["low_mass"])
+    bits = set_flag(bits, "high_mass", f["high_mass"])
     out["mass_msun"] = m
     out["radius_rsun"] = r
     out["logg"] = g
