@@ -43,12 +43,27 @@ class PublishedRelation:
         Calibrated range of each input.
     note : str
         Caveats a user should read.
+    source_location : str
+        Where in the reference the coefficients stand (table, equation, page).
+    verified : bool or None
+        True: the coefficients were checked against the source (or sources quoting it, as
+        ``verification`` says); False: they were not, and the data dictionary and README say so;
+        None: not yet reviewed.
+    verification : str
+        How the values were checked (or why they could not be).
+    bibtex : dict, optional
+        Fields of the reference for BibTeX export: ``authors`` (list of "Last, F."), ``year``,
+        ``journal``, ``volume``, ``page`` (first page or article id), optional ``title``.
     """
 
     key: str
     reference: str
     ranges: tuple = field(default_factory=tuple)
     note: str = ""
+    source_location: str = ""
+    verified: bool | None = None
+    verification: str = ""
+    bibtex: dict | None = None
 
     def inside(self, **values):
         """True where every named input lies inside its valid range."""
@@ -74,6 +89,23 @@ class PublishedRelation:
         return ok
 
     def as_model(self):
-        """Provenance entry for this relation."""
-        return {"name": self.key, "reference": self.reference,
-                "valid_range": {r.quantity: [r.low, r.high, r.unit] for r in self.ranges}}
+        """Provenance entry for this relation (what ``cinderclock cite`` and the data dictionary read)."""
+        entry = {"name": self.key, "reference": self.reference,
+                 "valid_range": {r.quantity: [r.low, r.high, r.unit] for r in self.ranges}}
+        if self.source_location:
+            entry["source_location"] = self.source_location
+        if self.verified is not None:
+            entry["verified"] = bool(self.verified)
+        if self.verification:
+            entry["verification"] = self.verification
+        bib = self.bibtex or bibtex_fields(self.reference)
+        if bib:
+            entry["bibtex"] = bib
+        return entry
+
+
+def bibtex_fields(reference):
+    """BibTeX fields of a reference from the package's bibliography (None if it is not listed)."""
+    from .bibliography import lookup
+
+    return lookup(reference)

@@ -105,8 +105,8 @@ class PopulationModel:
         from ..progenitor.ifmr import get_ifmr
         from ..progenitor.lifetimes import get_lifetime
 
-        self.ifmr = get_ifmr(ifmr) if isinstance(ifmr, str) else ifmr
-        self.lifetime = get_lifetime(lifetime) if isinstance(lifetime, str) else lifetime
+        self.ifmr = get_ifmr(ifmr) if isinstance(ifmr, (str, dict)) else ifmr
+        self.lifetime = get_lifetime(lifetime) if isinstance(lifetime, (str, dict)) else lifetime
         self.imf = get_imf(imf)
         self.metallicity = float(metallicity)
         lo, hi = mass_range_msun if mass_range_msun is not None else self.ifmr.initial_range
@@ -122,7 +122,7 @@ class PopulationModel:
         w = self.imf.number_between(edges[:-1], edges[1:])
         w = w / w.sum()
         mf, _ = self.ifmr.final_mass(mi)
-        t_prog_yr, life_ok = self.lifetime.lifetime_yr(mi, self.metallicity)
+        t_prog_yr, life_ok = self.lifetime.lifetime_yr(mi, self.metallicity, mf)
         self.initial_mass_msun = mi
         self.final_mass_msun = np.asarray(mf, dtype=float)
         self.progenitor_lifetime_gyr = np.asarray(t_prog_yr, dtype=float) / 1e9
@@ -216,11 +216,12 @@ class PopulationModel:
 
     def models(self):
         """Provenance entries of the IMF, IFMR and lifetime formula."""
-        return [self.imf.as_model(), self.ifmr.as_model(), self.lifetime.as_model()]
+        return [self.imf.as_model(), self.ifmr.as_model(), self.lifetime.as_model(self.metallicity)]
 
 
 #: Progenitor choices used when neither the ``population`` nor the ``progenitor`` section sets them.
-PROGENITOR_DEFAULTS = {"ifmr": "cummings2018_mist", "lifetime": "hurley2000", "metallicity": 0.02}
+PROGENITOR_DEFAULTS = {"ifmr": {"relation": "cummings2018", "isochrones": "mist"},
+                       "lifetime": {"formulae": "hurley2000", "until": "agb_end"}, "metallicity": 0.02}
 
 
 def progenitor_choices(population, progenitor=None):

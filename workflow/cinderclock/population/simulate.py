@@ -53,7 +53,7 @@ def simulate_white_dwarfs(rng, n_formed, age_gyr, log_lum_at_age, ifmr="cummings
     tau_grid = np.linspace(0.0, float(age_gyr), 20001)
     cdf = sfh.cumulative(tau_grid, age_gyr)
     tau = np.interp(rng.uniform(size=mi.size) * cdf[-1], cdf, tau_grid)
-    t_prog = life.lifetime_yr(mi, metallicity)[0] / 1e9
+    t_prog = life.lifetime_yr(mi, metallicity, rel.final_mass(mi)[0])[0] / 1e9
     wd = tau > t_prog
     mi, t_cool = mi[wd], (tau - t_prog)[wd]
     mf = rel.final_mass(mi)[0]

@@ -7,26 +7,14 @@ range is the initial-mass range the paper calibrated; the matching final-mass ra
 the relation. Outside it the functions return NaN (or, on request, the end segments continued)
 together with an in-range mask: they never extrapolate silently.
 
-Relations (coefficients as quoted by secondary sources that agree; mark C2 in the project's
-reference list):
+The configuration names a relation by its study and, where the study gives several, the
+isochrone set its progenitor ages rest on (``progenitor.ifmr: {relation: ..., isochrones: ...}``);
+:data:`STUDIES` lists them. Coefficients and how each was checked are in the relation's metadata
+(``source_location``, ``verified``, ``verification``) and in the README.
 
-``cummings2018_mist``
-    Cummings et al. 2018, ApJ 866, 21, with MIST isochrone ages: 0.080 Mi + 0.489 (0.83-2.85),
-    0.187 Mi + 0.184 (2.85-3.60), 0.107 Mi + 0.471 (3.60-7.20). The default.
-``cummings2018_parsec``
-    Same paper, PARSEC ages: 0.0873 Mi + 0.476 (0.87-2.80), 0.181 Mi + 0.210 (2.80-3.65),
-    0.0835 Mi + 0.565 (3.65-8.20).
-``kalirai2008``
-    Kalirai et al. 2008, ApJ 676, 594: (0.109 +- 0.007) Mi + (0.394 +- 0.025). Secondary sources
-    disagree on the intercept (0.394 or 0.428); not checked against the paper, so this relation is
-    *not* the default. Range 1.16-6.5 Msun from memory.
-``catalan2008``
-    Catalan et al. 2008, MNRAS 387, 1693: 0.096 Mi + 0.429 (Mi <= 2.7), 0.137 Mi + 0.318
-    (Mi > 2.7). Calibrated range 1.0-6.5 Msun from memory (not checked).
-
-Where the quoted segments do not meet exactly (PARSEC: Mf drops by 0.0036 Msun at Mi = 2.80 and
-by 0.0009 at 3.65; MIST: gaps below 0.001), the inverse takes the upper segment for a final mass
-that two segments share; this moves Mi by at most ~0.04 Msun.
+Where the quoted segments do not meet exactly (Cummings PARSEC: Mf drops by 0.0036 Msun at
+Mi = 2.80 and by 0.0009 at 3.65; MIST: gaps below 0.001), the inverse takes the upper segment for
+a final mass that two segments share; this moves Mi by at most ~0.04 Msun.
 
 Cautions: IFMRs are least constrained at low initial mass (Mi < ~1.5 Msun), where a small error in
 the white-dwarf mass maps to a large error in the progenitor mass and lifetime; white dwarfs
@@ -121,13 +109,20 @@ class PiecewiseLinearIFMR:
         return self.relation.as_model()
 
 
+_CUMMINGS_REF = "Cummings, J. D., Kalirai, J. S., Tremblay, P.-E., Ramirez-Ruiz, E. & Choi, J. 2018, ApJ 866, 21"
+_CUMMINGS_CHECK = ("coefficients from three secondary sources that agree (/work/shared/reference-values.md section 7, "
+                   "C2); consistent with the paper's abstract: slopes 0.08, 0.19 (2.85-3.6 Msun) and 0.11, mass "
+                   "lost 33 % of M_i at 0.83 Msun and 83 % at 7.5 Msun")
+
 CUMMINGS2018_MIST = PiecewiseLinearIFMR(
     PublishedRelation(
         key="cummings2018_mist",
-        reference="Cummings, J. D., Kalirai, J. S., Tremblay, P.-E., Ramirez-Ruiz, E. & Choi, J. 2018, "
-                  "ApJ 866, 21 (MIST-based progenitor masses)",
+        reference=_CUMMINGS_REF + " (MIST-based progenitor masses)",
         ranges=(ValidRange("initial_mass", 0.83, 7.20, "solMass"),),
         note="three linear segments; least constrained below Mi ~ 1.5 Msun",
+        source_location="piecewise-linear fit with MIST ages (equation numbers not checked)",
+        verified=True,
+        verification=_CUMMINGS_CHECK,
     ),
     ((0.83, 2.85, 0.080, 0.489), (2.85, 3.60, 0.187, 0.184), (3.60, 7.20, 0.107, 0.471)),
 )
@@ -135,10 +130,12 @@ CUMMINGS2018_MIST = PiecewiseLinearIFMR(
 CUMMINGS2018_PARSEC = PiecewiseLinearIFMR(
     PublishedRelation(
         key="cummings2018_parsec",
-        reference="Cummings, J. D., Kalirai, J. S., Tremblay, P.-E., Ramirez-Ruiz, E. & Choi, J. 2018, "
-                  "ApJ 866, 21 (PARSEC-based progenitor masses)",
+        reference=_CUMMINGS_REF + " (PARSEC-based progenitor masses)",
         ranges=(ValidRange("initial_mass", 0.87, 8.20, "solMass"),),
         note="three linear segments; least constrained below Mi ~ 1.5 Msun",
+        source_location="piecewise-linear fit with PARSEC ages (equation numbers not checked)",
+        verified=True,
+        verification="coefficients from secondary sources (/work/shared/reference-values.md section 7, C2)",
     ),
     ((0.87, 2.80, 0.0873, 0.476), (2.80, 3.65, 0.181, 0.210), (3.65, 8.20, 0.0835, 0.565)),
 )
@@ -149,10 +146,27 @@ KALIRAI2008 = PiecewiseLinearIFMR(
         reference="Kalirai, J. S., Hansen, B. M. S., Kelson, D. D., Reitzel, D. B., Rich, R. M. & "
                   "Richer, H. B. 2008, ApJ 676, 594",
         ranges=(ValidRange("initial_mass", 1.16, 6.5, "solMass"),),
-        note="intercept 0.394 as in most secondary sources; one source quotes 0.428 -- unresolved, "
-             "not checked against the paper; calibrated range from memory",
+        note="single linear fit; lower end 1.16 Msun as in the paper's abstract",
+        source_location="linear fit of the paper's IFMR section (equation number not checked)",
+        verified=False,
+        verification="UNVERIFIED: secondary sources disagree on the intercept (0.394 or 0.428; 0.394 used); the "
+                     "lower end of the range (1.16 Msun) is in the abstract, the upper end (6.5 Msun) is not checked",
     ),
     ((1.16, 6.5, 0.109, 0.394),),
+)
+
+KALIRAI2009 = PiecewiseLinearIFMR(
+    PublishedRelation(
+        key="kalirai2009",
+        reference="Kalirai, J. S., Davis, D. S., Richer, H. B., et al. 2009, ApJ 705, 408",
+        ranges=(ValidRange("initial_mass", 0.8, 6.5, "solMass"),),
+        note="single linear fit including the globular-cluster white dwarfs at the low-mass end",
+        source_location="linear fit (equation number not checked)",
+        verified=False,
+        verification="coefficients from one secondary source (/work/shared/reference-values.md section 7, C2); "
+                     "calibrated range (0.8-6.5 Msun) not checked against the paper: UNVERIFIED range",
+    ),
+    ((0.8, 6.5, 0.101, 0.463),),
 )
 
 CATALAN2008 = PiecewiseLinearIFMR(
@@ -160,22 +174,89 @@ CATALAN2008 = PiecewiseLinearIFMR(
         key="catalan2008",
         reference="Catalan, S., Isern, J., Garcia-Berro, E. & Ribas, I. 2008, MNRAS 387, 1693",
         ranges=(ValidRange("initial_mass", 1.0, 6.5, "solMass"),),
-        note="two linear segments meeting at Mi = 2.7 Msun; calibrated range from memory (not checked)",
+        note="two linear segments meeting at Mi = 2.7 Msun",
+        source_location="two-segment linear fit (equation number not checked)",
+        verified=False,
+        verification="coefficients from one secondary source (/work/shared/reference-values.md section 7, C2); "
+                     "calibrated range 1.0-6.5 Msun not checked against the paper: UNVERIFIED range",
     ),
     ((1.0, 2.7, 0.096, 0.429), (2.7, 6.5, 0.137, 0.318)),
 )
 
-#: IFMRs by configuration key.
-IFMRS = {r.key: r for r in (CUMMINGS2018_MIST, CUMMINGS2018_PARSEC, KALIRAI2008, CATALAN2008)}
-#: Default IFMR.
-DEFAULT_IFMR = "cummings2018_mist"
+SALARIS2009 = PiecewiseLinearIFMR(
+    PublishedRelation(
+        key="salaris2009",
+        reference="Salaris, M., Serenelli, A., Weiss, A. & Miller Bertolami, M. 2009, ApJ 692, 1013",
+        ranges=(ValidRange("initial_mass", 1.7, 6.5, "solMass"),),
+        note="two linear segments meeting at Mi = 4 Msun; semi-empirical, with the paper's own isochrones",
+        source_location="two-segment linear fit (equation number not checked)",
+        verified=False,
+        verification="first segment 0.134 Mi + 0.331 (1.7-4 Msun) from a secondary source "
+                     "(/work/shared/reference-values.md section 7, C2); upper slope 0.047 from the same source, its "
+                     "intercept 0.679 set by continuity at 4 Msun (the source's ~0.679 agrees); upper end of the range "
+                     "(6.5 Msun) UNVERIFIED",
+    ),
+    ((1.7, 4.0, 0.134, 0.331), (4.0, 6.5, 0.047, 0.134 * 4.0 + 0.331 - 0.047 * 4.0)),
+)
+
+WILLIAMS2009 = PiecewiseLinearIFMR(
+    PublishedRelation(
+        key="williams2009",
+        reference="Williams, K. A., Bolte, M. & Koester, D. 2009, ApJ 693, 355",
+        ranges=(ValidRange("initial_mass", 2.5, 6.5, "solMass"),),
+        note="single linear fit to young open clusters",
+        source_location="linear fit (equation number not checked)",
+        verified=False,
+        verification="UNVERIFIED: slope 0.129 and intercept 0.339 and the calibrated range are not confirmed "
+                     "against the paper or a secondary source",
+    ),
+    ((2.5, 6.5, 0.129, 0.339),),
+)
+
+#: Studies and their isochrone variants: relation -> {isochrones: IFMR}; ``None`` is a study's only variant.
+STUDIES = {
+    "cummings2018": {"mist": CUMMINGS2018_MIST, "parsec": CUMMINGS2018_PARSEC},
+    "kalirai2008": {None: KALIRAI2008},
+    "kalirai2009": {None: KALIRAI2009},
+    "catalan2008": {None: CATALAN2008},
+    "salaris2009": {None: SALARIS2009},
+    "williams2009": {None: WILLIAMS2009},
+}
+#: Every IFMR by internal key.
+IFMRS = {v.key: v for variants in STUDIES.values() for v in variants.values()}
+#: Default IFMR (see the README for the reasons).
+DEFAULT_IFMR = {"relation": "cummings2018", "isochrones": "mist"}
 
 
-def get_ifmr(key=DEFAULT_IFMR):
-    """The IFMR of a configuration key (raises ConfigError naming the choices)."""
-    if isinstance(key, PiecewiseLinearIFMR):
-        return key
+def get_ifmr(spec=None):
+    """The IFMR of a configuration choice (raises ConfigError naming the choices).
+
+    Parameters
+    ----------
+    spec : dict, str or PiecewiseLinearIFMR
+        ``{relation, isochrones}`` as in ``progenitor.ifmr``; an internal key of :data:`IFMRS`;
+        or a relation (returned as is). None: :data:`DEFAULT_IFMR`.
+    """
+    if isinstance(spec, PiecewiseLinearIFMR):
+        return spec
+    if spec is None:
+        spec = DEFAULT_IFMR
+    if isinstance(spec, dict):
+        study = spec.get("relation", DEFAULT_IFMR["relation"])
+        variants = STUDIES.get(study)
+        if variants is None:
+            raise ConfigError(f"progenitor.ifmr.relation: unknown relation {study!r}; choose one of {sorted(STUDIES)}")
+        iso = spec.get("isochrones")
+        if iso is None and None not in variants:
+            iso = "mist" if "mist" in variants else sorted(variants)[0]
+        if iso not in variants:
+            if None in variants:
+                raise ConfigError(f"progenitor.ifmr.isochrones: relation {study!r} comes in one version only; "
+                                  f"leave isochrones unset (null)")
+            raise ConfigError(f"progenitor.ifmr.isochrones: relation {study!r} has isochrone sets "
+                              f"{sorted(k for k in variants if k)}; got {iso!r}")
+        return variants[iso]
     try:
-        return IFMRS[key]
-    except KeyError:
-        raise ConfigError(f"unknown initial-final mass relation '{key}'; choose one of {sorted(IFMRS)}") from None
+        return IFMRS[spec]
+    except (KeyError, TypeError):
+        raise ConfigError(f"unknown initial-final mass relation '{spec}'; choose one of {sorted(IFMRS)}") from None

@@ -57,12 +57,13 @@ def total_age(final_mass_msun, cooling_age_yr, ifmr=DEFAULT_IFMR, lifetime=DEFAU
         White-dwarf mass in Msun.
     cooling_age_yr : array_like
         Cooling age in years.
-    ifmr : str or PiecewiseLinearIFMR
-        Initial-final mass relation key (see :data:`cinderclock.progenitor.ifmr.IFMRS`).
-    lifetime : str or LifetimeModel
-        Lifetime formula key (see :data:`cinderclock.progenitor.lifetimes.LIFETIMES`).
+    ifmr : dict, str or PiecewiseLinearIFMR
+        Initial-final mass relation: ``{relation, isochrones}`` (see
+        :func:`cinderclock.progenitor.ifmr.get_ifmr`).
+    lifetime : dict, str or LifetimeModel
+        Lifetime formula: ``{formulae, until}`` (see :func:`cinderclock.progenitor.lifetimes.get_lifetime`).
     metallicity : float
-        Progenitor metallicity Z (Hurley et al. formulae accept 0.02 only).
+        Progenitor metallicity Z (Hurley et al. formulae: 1e-4 to 0.03).
     final_mass_err_msun : array_like, optional
         1-sigma error of the white-dwarf mass, propagated linearly to the progenitor lifetime.
     extrapolate : bool
@@ -80,7 +81,8 @@ def total_age(final_mass_msun, cooling_age_yr, ifmr=DEFAULT_IFMR, lifetime=DEFAU
     t_cool = np.asarray(cooling_age_yr, dtype=float)
     mi, ifmr_ok = rel.initial_mass(mf, extrapolate=extrapolate)
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-        t_prog, life_ok = life.lifetime_yr(mi, metallicity)
+        mf_for_life = mf if life.needs_final_mass else None
+        t_prog, life_ok = life.lifetime_yr(mi, metallicity, mf_for_life)
         t_prog = np.where(mi > 0, t_prog, np.nan)
         total = t_cool + t_prog
         flags = np.zeros(np.broadcast(mf, t_cool).shape, dtype=np.int16)
@@ -93,8 +95,8 @@ def total_age(final_mass_msun, cooling_age_yr, ifmr=DEFAULT_IFMR, lifetime=DEFAU
             h = _DERIV_STEP_MSUN
             mi_p, _ = rel.initial_mass(mf + h, extrapolate=True)
             mi_m, _ = rel.initial_mass(mf - h, extrapolate=True)
-            tp, _ = life.lifetime_yr(mi_p, metallicity)
-            tm, _ = life.lifetime_yr(mi_m, metallicity)
+            tp, _ = life.lifetime_yr(mi_p, metallicity, None if mf_for_life is None else mf + h)
+            tm, _ = life.lifetime_yr(mi_m, metallicity, None if mf_for_life is None else mf - h)
             t_err = np.where(np.isfinite(t_prog), np.abs((tp - tm) / (2 * h)) * err, np.nan)
             uncertain |= np.isfinite(t_prog) & (t_err > LIFETIME_REL_ERROR_LIMIT * t_prog)
         flags |= np.where(uncertain, FLAG_LIFETIME_UNCERTAIN, 0).astype(np.int16)
@@ -103,6 +105,6 @@ def total_age(final_mass_msun, cooling_age_yr, ifmr=DEFAULT_IFMR, lifetime=DEFAU
             "total_age_yr": total, "flags": flags}
 
 
-def models(ifmr=DEFAULT_IFMR, lifetime=DEFAULT_LIFETIME):
-    """Provenance entries of the chosen IFMR and lifetime formula."""
-    return [get_ifmr(ifmr).as_model(), get_lifetime(lifetime).as_model()]
+def models(ifmr=DEFAULT_IFMR, lifetime=DEFAULT_LIFETIME, metallicity=0.02):
+    """Provenance entries of the chosen IFMR and lifetime formula (the metallicity with the lifetime)."""
+    return [get_ifmr(ifmr).as_model(), get_lifetime(lifetime).as_model(metallicity)]

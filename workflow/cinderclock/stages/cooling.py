@@ -93,12 +93,7 @@ def cooling(table, settings, grid, compare=None):
 
 def progenitor_models(settings):
     """Provenance entries of the IFMR and lifetime formula in use."""
-    from ..progenitor.ifmr import get_ifmr
-    from ..progenitor.lifetimes import get_lifetime
+    from ..progenitor.total_age import models
 
     prog = settings["progenitor"]
-    out = []
-    for obj in (get_ifmr(prog["ifmr"]), get_lifetime(prog["lifetime"])):
-        out.append(obj.as_model())
-    out.append({"name": "metallicity", "reference": "", "Z": prog["metallicity"]})
-    return out
+    return models(prog["ifmr"], prog["lifetime"], prog["metallicity"])
