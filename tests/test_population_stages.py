@@ -224,4 +224,4 @@ def test_progenitor_choices_fall_back_to_the_progenitor_section():
     pop = {"ifmr": None, "lifetime": "rule_of_thumb", "metallicity": None}
     assert progenitor_choices(pop, {"ifmr": "catalan2008", "lifetime": "hurley2000"}) == \
         {"ifmr": "catalan2008", "lifetime": "rule_of_thumb", "metallicity": 0.02}
-    assert progenitor_choices(pop, None)["ifmr"] == "cummings2018_mist"
+    assert progenitor_choices(pop, None)["ifmr"] == {"relation": "cummings2018", "isochrones": "mist"}

@@ -25,10 +25,10 @@ def test_hurley_tbgb():
     assert hurley_tbgb_myr(1.0) == pytest.approx(11582, abs=0.5)
 
 
-def test_hurley_other_metallicity_refused():
-    # Only the Z = 0.02 coefficients are confirmed (module docstring): other Z must not pass silently.
-    with pytest.raises(ConfigError, match="Z = 0.02"):
-        hurley_tms_myr(1.0, metallicity=0.001)
+def test_hurley_metallicity_outside_published_range_refused():
+    # Hurley et al. 2000 cover Z = 1e-4 to 0.03; outside it the formulae must not pass silently.
+    with pytest.raises(ConfigError, match="outside the range"):
+        hurley_tms_myr(1.0, metallicity=0.04)
 
 
 def test_rule_of_thumb():

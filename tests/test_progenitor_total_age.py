@@ -13,7 +13,7 @@ from cinderclock.progenitor.total_age import (AGE_OF_UNIVERSE_YR, FLAG_IFMR_RANG
 
 
 def test_total_age_at_published_points():
-    out = total_age([0.649, 0.745], [1.0e9, 2.0e9])
+    out = total_age([0.649, 0.745], [1.0e9, 2.0e9], lifetime={"formulae": "hurley2000", "until": "main_sequence"})
     assert out["initial_mass_msun"] == pytest.approx([2.0, 3.0], abs=1e-5)
     # 1 Gyr + 1164 Myr; 2 Gyr + 377.5 Myr (rounded D values; tolerance 0.5 Myr)
     assert out["total_age_yr"] == pytest.approx([2.164e9, 2.3775e9], abs=0.5e6)
@@ -48,4 +48,4 @@ def test_choices_and_provenance():
     refs = [m["reference"] for m in models("catalan2008", "rule_of_thumb")]
     assert any("Catalan" in r for r in refs) and any("Hansen" in r for r in refs)
     with pytest.raises(ConfigError):
-        total_age([0.7], [1e9], metallicity=0.001)
+        total_age([0.7], [1e9], metallicity=0.05)         # outside Z = 1e-4 to 0.03 (Hurley et al. 2000)

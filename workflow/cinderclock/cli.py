@@ -7,6 +7,8 @@
     cinderclock export results/final/white_dwarfs.parquet --format votable [-o OUT] [--overwrite]
     cinderclock dictionary results/final/white_dwarfs.parquet -o data_dictionary.md
     cinderclock cite results/final/white_dwarfs.parquet             # references of the models used
+    cinderclock cite results/final/white_dwarfs.parquet --bibtex refs.bib
+    cinderclock --version
 
 ``inspect``, ``dictionary`` and ``cite`` read Parquet tables and their FITS, VOTable and ECSV
 exports alike. A fault the user can fix (missing or damaged file, unknown format, existing output)
@@ -116,21 +118,34 @@ def cmd_cite(args):
     d = describe(args.file)
     if not d.meta:
         raise InputError("no cinderclock provenance in this file, so the models it used are unknown", d.path)
-    refs = d.references()
+    cited = d.cited_models()
     prov = d.provenance
     print(f"Models used to make {Path(d.path).name} (from its provenance):")
-    if not refs:
+    if not cited:
         print("  (none recorded)")
-    for i, ref in enumerate(refs, start=1):
-        print(f"  [{i}] {ref}")
+    for i, (ref, names, _) in enumerate(cited, start=1):
+        print(f"  [{i}] {ref}  ({', '.join(names)})")
     print(f"Software: {prov.get('package', 'cinderclock')} {prov.get('package_version', '?')}, "
           f"configuration hash {prov.get('config_hash', '?')}.")
+    if args.bibtex:
+        from .bibliography import bibtex
+        from .tableio import atomic_write
+
+        out = Path(args.bibtex)
+        if out.exists() and not args.overwrite:
+            raise InputError("the output file exists; pass --overwrite to replace it", out)
+        text = bibtex([(ref, fields) for ref, _, fields in cited])
+        atomic_write(out, lambda tmp: Path(tmp).write_text(text))
+        print(f"wrote {out}")
     return 0
 
 
 def build_parser():
+    from . import __version__
+
     p = argparse.ArgumentParser(prog="cinderclock", description="Look into, export, document and cite the tables "
                                 "a cinderclock run wrote.")
+    p.add_argument("--version", action="version", version=f"cinderclock {__version__}")
     sub = p.add_subparsers(dest="command", required=True, metavar="COMMAND")
 
     s = sub.add_parser("inspect", help="print the schema version, provenance and columns of a table")
@@ -153,8 +168,10 @@ def build_parser():
     s.add_argument("--overwrite", action="store_true", help="replace an existing output file")
     s.set_defaults(func=cmd_dictionary)
 
-    s = sub.add_parser("cite", help="print the references of the models a run used")
+    s = sub.add_parser("cite", help="print the references of the models a run used (numbered); --bibtex writes them")
     s.add_argument("file")
+    s.add_argument("--bibtex", metavar="BIBFILE", help="also write the references as BibTeX to BIBFILE")
+    s.add_argument("--overwrite", action="store_true", help="replace an existing BibTeX file")
     s.set_defaults(func=cmd_cite)
     return p
 

@@ -70,7 +70,32 @@ class TableDescription:
     def models(self):
         """``(stage, model entry)`` for every model recorded in the provenance, in workflow order."""
         return [(stage, m) for stage, entry in self.stages().items()
-                for m in entry.get("models", []) if m.get("reference") or m.get("caution")]
+                for m in entry.get("models", []) if m.get("reference")]
+
+    def cautions(self):
+        """``(stage, text)`` of every caution recorded with the provenance's entries, without repeats."""
+        out = []
+        for stage, entry in self.stages().items():
+            for m in entry.get("models", []):
+                for c in ([m["caution"]] if m.get("caution") else []) + list(m.get("cautions") or []):
+                    if c and (stage, c) not in out:
+                        out.append((stage, c))
+        return out
+
+    def cited_models(self):
+        """``(reference, [model names], bibtex fields or None)`` of every model with a reference, in
+        workflow order, one row per distinct reference (collected generically from the provenance's
+        model entries, so a newly registered model appears without changes here)."""
+        rows = {}
+        for _, m in self.models():
+            ref = m.get("reference")
+            if not ref:
+                continue
+            if ref not in rows:
+                rows[ref] = ([], m.get("bibtex"))
+            if m.get("name") and m["name"] not in rows[ref][0]:
+                rows[ref][0].append(m["name"])
+        return [(ref, names, bib) for ref, (names, bib) in rows.items()]
 
     def references(self):
         """Model references of the run, de-duplicated, in workflow order."""
@@ -119,8 +144,24 @@ def _describe_parquet(path):
         columns[f.name] = Column(md.get("unit", spec.get("unit", "")),
                                  md.get("description", spec.get("description", "")),
                                  md.get("ucd", spec.get("ucd", "")))
-        dtypes[f.name] = str(f.type)
+        dtypes[f.name] = plain_type(f.type)
     return TableDescription(str(path), "parquet", n_rows, columns, dtypes, meta)
+
+
+def plain_type(arrow_type):
+    """Plain name of a column type: string, float64, float32, int64, ..., bool."""
+    import pyarrow as pa
+
+    t = arrow_type
+    if pa.types.is_dictionary(t):
+        t = t.value_type
+    if pa.types.is_string(t) or pa.types.is_large_string(t):
+        return "string"
+    if pa.types.is_boolean(t):
+        return "bool"
+    if pa.types.is_floating(t) or pa.types.is_integer(t):
+        return str(t.to_pandas_dtype().__name__) if hasattr(t.to_pandas_dtype(), "__name__") else str(t)
+    return str(t)
 
 
 def _describe_export(path, kind):
@@ -165,7 +206,8 @@ def _describe_export(path, kind):
             unit = parse_unit(str(col.unit)) if col.unit is not None else None
             text = "" if unit is None else unit if isinstance(unit, str) else unit.to_string()
             columns[name] = Column(text, col.description or "", (col.meta or {}).get("ucd", ""))
-        dtypes[name] = str(col.dtype)
+        kind_char = col.dtype.kind
+        dtypes[name] = "string" if kind_char in "USO" else "bool" if kind_char == "b" else col.dtype.name
     return TableDescription(str(path), kind, len(table), columns, dtypes, meta)
 
 
@@ -256,12 +298,19 @@ def dictionary_markdown(d, title=None, level=1):
         out += [f"| `{r}` | {_cell(m)} |" for r, m in reasons.items()]
     models = d.models()
     if models:
-        out += ["", f"{h}# Models and references", "", "| stage | model | reference |", "|---|---|---|"]
-        out += [f"| {st} | `{m.get('name', '')}` | {_cell(m.get('reference', ''))} |" for st, m in models]
-        cautions = [(m.get("name", ""), m["caution"]) for _, m in models if m.get("caution")]
-        if cautions:
-            out += ["", "Cautions recorded with the models:", ""]
-            out += [f"* `{n}`: {_cell(c)}" for n, c in cautions]
+        out += ["", f"{h}# Models and references", "",
+                "| # | stage | model | reference | where in the source | checked against the source |",
+                "|---|---|---|---|---|---|"]
+        for i, (st, m) in enumerate(models, start=1):
+            checked = {True: "verified", False: "UNVERIFIED"}.get(m.get("verified"), "not reviewed")
+            if m.get("verification"):
+                checked += f": {m['verification']}"
+            out.append(f"| {i} | {st} | `{m.get('name', '')}` | {_cell(m.get('reference', ''))} | "
+                       f"{_cell(m.get('source_location', ''))} | {_cell(checked)} |")
+    cautions = d.cautions()
+    if cautions:
+        out += ["", "Cautions recorded with the models:", ""]
+        out += [f"* {st}: {_cell(c)}" for st, c in cautions]
     stages = d.stages()
     if stages:
         out += ["", f"{h}# Stages", "", "| stage | settings hash | inputs |", "|---|---|---|"]

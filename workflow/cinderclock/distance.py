@@ -44,6 +44,10 @@ EDSD_BAILER_JONES_2015 = PublishedRelation(
     reference="Bailer-Jones, C. A. L. 2015, PASP 127, 994 (exponentially decreasing space density prior)",
     ranges=(ValidRange("length_scale_pc", 1.0, 1e5, "pc"),),
     note="prior-dominated at low parallax S/N; choose L for the population (white dwarfs: a few hundred pc)",
+    source_location="section 3, the exponentially decreasing space density prior and the mode of its posterior",
+    verified=True,
+    verification="method and reference (PASP 127, 994, 2015) checked against the paper's record and abstract; the "
+                 "prior has no published coefficient (its length scale is the user's choice)",
 )
 
 #: Method codes written in the ``method`` output.
@@ -53,11 +57,12 @@ METHOD_NONE = "none"
 
 #: Default S/N above which the inverse parallax is used (fractional error 0.1). Bailer-Jones
 #: (2015) shows the inverse parallax to be a fair estimator only for fractional errors of about
-#: 0.1 - 0.2 and below (from memory); 10 is our choice within that range.
+#: 0.1 - 0.2 and below (the paper's abstract: "not trivial once the fractional parallax error is
+#: larger than about 20%"); 10 is our choice within that range.
 DEFAULT_MIN_SNR_INVERSE = 10.0
 
 #: Default EDSD length scale, pc. 1.35 kpc is the value Astraatmadja & Bailer-Jones (2016,
-#: ApJ 832, 137) used for a Galaxy-wide sample (from memory); set a smaller value for local
+#: ApJ 832, 137) used for a Galaxy-wide sample (unverified); set a smaller value for local
 #: white-dwarf samples (see the module caution).
 DEFAULT_LENGTH_SCALE_PC = 1350.0
 

@@ -24,11 +24,12 @@ ECSV      astropy unit strings, description and        ``cinderclock`` key of th
 ========  ===========================================  =============================================
 
 Logarithmic units: ``dex(cm / s2)`` (log g) and ``dex(solLum)`` (log L) are written as
-``[cm.s-2]`` and ``[Lsun]`` in VOTable (CDS syntax; astropy reads them back exactly) and as
-``log(cm s-2)`` and ``log(solLum)`` in FITS (the FITS standard's function notation; astropy's FITS
-reader does not parse it and returns an ``UnrecognizedUnit`` holding that text, but
-:func:`parse_unit` here and ``cinderclock inspect`` do). An uncertainty in dex is ``[-]`` in
-VOTable and ``dex`` in FITS.
+``[cm/s2]`` and ``[solLum]`` in VOTable (CDS syntax, which VOTable 1.3 prescribes; astropy reads
+them back as the same units) and an uncertainty in dex as ``[-]`` (astropy shows it as
+``dex(---)``, which equals ``dex``). In FITS no unit string for a logarithm reads back in astropy
+without a warning, so log columns carry no ``TUNITn``: astropy's serialized-column block (COMMENT
+cards) holds their unit, which astropy restores on reading, and the column comment quotes the FITS
+standard's function notation (``log(solLum)``) for other readers.
 
 Every export is written atomically (temporary file in the same folder, then renamed).
 """
@@ -39,6 +40,8 @@ import json
 import re
 import warnings
 from pathlib import Path
+
+import numpy as np
 
 from .errors import InputError
 from .tableio import atomic_write
@@ -205,15 +208,28 @@ def _try_format(unit, fmt):
 
 
 def _write_fits(table, block, tmp):
+    from astropy import units as u
     from astropy.io import fits
+    from astropy.table import MaskedColumn, QTable
 
     t = table.copy(copy_data=False)
     t.meta.clear()
-    fits_units = {}
-    for col in t.itercols():
-        fits_units[col.name] = unit_string("" if col.unit is None else col.unit.to_string(), "fits")
-        if col.unit is not None and fits_units[col.name] != _try_format(col.unit, "fits"):
-            col.unit = None             # astropy cannot write it; set below in the FITS standard's notation
+    log_units, dex_columns = {}, {}
+    for name in t.colnames:
+        col = t[name]
+        if isinstance(col.unit, u.FunctionUnitBase) or col.unit == u.dex:
+            # No FITS unit string for a logarithm reads back in astropy without a warning: write the
+            # column as a logarithmic quantity, whose unit astropy keeps in its serialized-column block,
+            # and quote the FITS standard's function notation in the column comment.
+            log_units[name] = unit_string(col.unit.to_string(), "fits")
+            if not isinstance(col, MaskedColumn):
+                dex_columns[name] = u.Dex(np.asarray(col), col.unit) if col.unit != u.dex else np.asarray(col) * u.dex
+    if dex_columns:
+        t = QTable(t, copy=False)
+        for name, q in dex_columns.items():
+            q.info.description = table[name].description
+            q.info.meta = dict(table[name].meta or {})
+            t.replace_column(name, q)
     t.meta[FITS_SCHEMA_KEY] = str(block.get("schema_version", ""))
     t.meta[FITS_STAGE_KEY] = str(block.get("stage") or "")
     t.meta[FITS_META_KEY] = json.dumps(block, sort_keys=True)
@@ -222,10 +238,11 @@ def _write_fits(table, block, tmp):
         t.write(tmp, format="fits", overwrite=True)
         with fits.open(tmp, mode="update") as hdul:
             header = hdul[1].header
-            for i, name in enumerate(t.colnames, start=1):
-                if fits_units[name]:
-                    header[f"TUNIT{i}"] = fits_units[name]
-                description = table[name].description or ""
+            names = [header.get(f"TTYPE{i}") for i in range(1, header.get("TFIELDS", 0) + 1)]
+            for i, name in enumerate(names, start=1):
+                description = (table[name].description or "") if name in table.colnames else ""
+                if name in log_units:
+                    description = f"[{log_units[name]}] {description}"
                 header.comments[f"TTYPE{i}"] = description[: 80 - 33]
             header.comments[FITS_META_KEY] = "cinderclock metadata block (JSON)"
 

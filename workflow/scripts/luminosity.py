@@ -3,7 +3,7 @@ from cinderclock.runner import run, stage_provenance, write_rejects, write_stage
 
 
 def body(smk):
-    from cinderclock.stages.luminosity import STAGE, column_specs, luminosity, model_cautions
+    from cinderclock.stages.luminosity import STAGE, column_specs, luminosity, luminosity_models
     from cinderclock.stages.models import load_photometry
     from cinderclock.tableio import read_table
 
@@ -12,7 +12,7 @@ def body(smk):
     settings = smk.params.settings
     grid = load_photometry(model_table)
     out, rejects = luminosity(table, settings, grid)
-    models = [{"name": "cautions", "reference": "", "cautions": model_cautions(grid.metadata, out)}]
+    models = luminosity_models(settings, grid.metadata, out)
     prov = stage_provenance(STAGE, settings, [smk.input.table, smk.input.photometry], models=models,
                             upstream=[meta["provenance"], model_meta["provenance"]])
     write_stage(out, smk.output.table, specs | column_specs(settings["bands"]), prov, STAGE)

@@ -27,13 +27,21 @@ SALPETER_1955 = PublishedRelation(
     key="salpeter",
     reference="Salpeter, E. E. 1955, ApJ 121, 161 (dN/dM ~ M^-2.35)",
     ranges=(ValidRange("initial_mass", 0.4, 10.0, "solMass"),),
-    note="single power law; fitted range about 0.4-10 Msun (from memory)",
+    note="single power law; the calibrated mass range is unverified (see the README's constants table)",
+    source_location="the power-law luminosity function of main-sequence stars (exponent 1.35 in d log M)",
+    verified=False,
+    verification="UNVERIFIED: slope 2.35 is the trade's standard quotation of the paper; the range 0.4-10 Msun is "
+                 "not checked against the paper",
 )
 KROUPA_2001 = PublishedRelation(
     key="kroupa",
     reference="Kroupa, P. 2001, MNRAS 322, 231 (segments alpha = 0.3, 1.3, 2.3 joined at 0.08 and 0.5 Msun)",
     ranges=(ValidRange("initial_mass", 0.01, 100.0, "solMass"),),
-    note="segment slopes as commonly quoted (from memory); above 1 Msun the slope is uncertain by about +-0.7",
+    note="three power-law segments; above 1 Msun the slope is uncertain (see the README's constants table)",
+    source_location="the multi-part power law (segments 0.01-0.08, 0.08-0.5, 0.5-100 Msun)",
+    verified=False,
+    verification="UNVERIFIED: segment slopes 0.3, 1.3, 2.3 and break masses as commonly quoted, not checked "
+                 "against the paper",
 )
 
 

@@ -215,7 +215,7 @@ def population_age_stage(stars, cooling_link, settings):
     total = float(model.white_dwarf_total([fit.age_gyr], sfh)[0])
     summary = fit.summary() | {
         "sfh": sfh.as_model(),
-        "models": model.models() + list(cooling_link.models) + [sfh.as_model()],
+        "models": model.models() + list(cooling_link.models) + [sfh.as_model()] + _method_models(settings),
         "cooling_model": cooling_link.name,
         "imf_share_not_modelled": model.lost_fraction,
         "white_dwarf_density_pc3": fit.amplitude * total,
@@ -252,6 +252,14 @@ def _no_fit(n_stars, fit_edges, ages, edges, model, cooling_link, sfh):
                              "phi_model": np.full(mids.size, np.nan)})
     profile = pd.DataFrame({"age_gyr": ages, "delta_lnl": np.full(ages.size, np.nan)})
     return summary, model_df, profile
+
+
+def _method_models(settings):
+    """The 1/Vmax method's provenance entries (for ``cinderclock cite``)."""
+    from .vmax import vmax_models
+
+    survey = (settings.get("population") or settings).get("survey") if isinstance(settings, dict) else None
+    return vmax_models(survey)
 
 
 def _interval_caution(fit):

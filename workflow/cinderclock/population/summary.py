@@ -59,6 +59,37 @@ def collect_models(provenance, extra=()):
     return out
 
 
+_BOOK_KEEPING = {"name", "reference", "caution", "cautions", "note", "kind", "valid_range", "source_location",
+                 "verified", "verification", "bibtex"}
+
+
+def split_entries(entries):
+    """Split ``(stage, entry)`` pairs into models (with a reference), settings (no reference, not a
+    caution) and cautions ``(stage, text)``; no row is empty."""
+    models, settings_rows, cautions = [], [], []
+    for stage, m in entries:
+        for c in ([m["caution"]] if m.get("caution") else []) + list(m.get("cautions") or []):
+            if c and (stage, c) not in cautions:
+                cautions.append((stage, c))
+        if m.get("reference"):
+            models.append((stage, m))
+        elif m.get("kind") != "caution" and any(k not in _BOOK_KEEPING for k in m):
+            settings_rows.append((stage, m))
+    return models, settings_rows, cautions
+
+
+def _verified_text(m):
+    if m.get("verified") is True:
+        return "yes" + (f" ({m['source_location']})" if m.get("source_location") else "")
+    if m.get("verified") is False:
+        return "UNVERIFIED: " + m.get("verification", "")
+    return ""
+
+
+def _settings_text(m):
+    return ", ".join(f"{k} = {v}" for k, v in sorted(m.items()) if k not in _BOOK_KEEPING)
+
+
 def _pair(v):
     """'a - b' for a two-number interval (None shown as n/a)."""
     v = list(v or [None, None])
@@ -154,13 +185,18 @@ def render(counts, provenance, config, lf_summary, fit_summary, title="cinderclo
         parts.append("<p>No population-age fit in this run.</p>")
 
     parts.append("<h2>Models and references</h2>")
-    rows = []
-    for stage, m in collect_models(provenance, (fit_summary or {}).get("models", [])):
-        rows.append((stage, m.get("name", ""), m.get("reference", ""), m.get("caution", m.get("note", ""))))
-    parts.append(_table(["stage", "model", "reference", "caution"], rows))
-    parts.append("<p>Method references: 1/V<sub>max</sub> estimator, Schmidt, M. 1968, ApJ 151, 393; proper-motion "
-                 "limits, Schmidt, M. 1975, ApJ 202, 22; effective volumes, Felten, J. E. 1976, ApJ 207, 700 and "
-                 "Stobie, R. S., Ishida, K. &amp; Peacock, J. A. 1989, MNRAS 238, 709.</p>")
+    entries = collect_models(provenance, (fit_summary or {}).get("models", []))
+    models, settings_rows, cautions = split_entries(entries)
+    rows = [(i, stage, m.get("name", ""), m.get("reference", ""), _verified_text(m))
+            for i, (stage, m) in enumerate(models, start=1)]
+    parts.append(_table(["#", "stage", "model", "reference", "checked against the source"], rows, numeric=(0,)))
+    if settings_rows:
+        parts.append("<h2>Model settings</h2>")
+        parts.append(_table(["stage", "setting group", "values"],
+                            [(stage, m.get("name", ""), _settings_text(m)) for stage, m in settings_rows]))
+    if cautions:
+        parts.append("<h2>Cautions of the models used</h2>")
+        parts += [f"<div class='caution'>{_e(stage)}: {_e(c)}</div>" for stage, c in cautions]
 
     parts.append("<h2>Configuration</h2>")
     parts.append(f"<pre>{_e(yaml.safe_dump(json.loads(json.dumps(config, default=str)), sort_keys=False))}</pre>")

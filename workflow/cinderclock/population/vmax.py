@@ -112,6 +112,23 @@ class SurveyLimits:
         return 4.0 * np.pi * self.sky_fraction
 
 
+#: Provenance entries of the luminosity-function method: the 1/Vmax estimator, and the
+#: proper-motion limit when the survey has one.
+VMAX_METHOD = {"name": "1/Vmax", "reference": "Schmidt, M. 1968, ApJ 151, 393",
+               "source_location": "the V/Vm estimator of the paper's section on the luminosity function",
+               "verified": True, "verification": "method as cited by the trade (reference-values.md section 9)"}
+VMAX_PROPER_MOTION = {"name": "1/Vmax proper-motion limit", "reference": "Schmidt, M. 1975, ApJ 202, 22",
+                      "verified": True, "verification": "reference as cited (reference-values.md section 9, C2)"}
+
+
+def vmax_models(limits_settings):
+    """Provenance entries of the 1/Vmax method for the survey limits in use."""
+    out = [dict(VMAX_METHOD)]
+    if (limits_settings or {}).get("min_proper_motion_mas_yr"):
+        out.append(dict(VMAX_PROPER_MOTION))
+    return out
+
+
 def limits_from_settings(settings):
     """:class:`SurveyLimits` from the ``population`` and ``select`` configuration sections.
 

@@ -178,3 +178,20 @@ def model_cautions(grid_metadata, table):
     from ..photometry.cautions import output_cautions
 
     return output_cautions(grid_metadata, bool((table["dist_method"] == "edsd_mode").any()) if len(table) else False)
+
+
+def luminosity_models(settings, grid_metadata, table):
+    """Provenance entries of the luminosity stage: the distance prior when any star's distance came
+    from it (with its length scale), and the stage's cautions as an entry of kind ``caution``
+    (not a model: it has no reference and the models tables leave it out)."""
+    from ..distance import EDSD_BAILER_JONES_2015
+
+    out = []
+    used_prior = bool((table["dist_method"] == "edsd_mode").any()) if len(table) else False
+    if used_prior:
+        scale = (settings.get("luminosity") or {}).get("distance", {}).get("prior_length_scale_pc")
+        out.append(EDSD_BAILER_JONES_2015.as_model() | {"length_scale_pc": scale,
+                                                        "caution": EDSD_BAILER_JONES_2015.note})
+    out.append({"name": "luminosity_cautions", "kind": "caution", "reference": "",
+                "cautions": model_cautions(grid_metadata, table)})
+    return out
