@@ -157,14 +157,21 @@ class PhysicsSwitches:
         return d
 
 
+def _entry(ingredient, relation, where):
+    """Reference entry of one ingredient from its PublishedRelation."""
+    return {"ingredient": ingredient, "relation": relation.key, "reference": relation.reference,
+            "where": f"cinderclock/cooling/{where}"}
+
+
 #: References of the ingredients, as data (for the tracks' settings and the table's provenance).
-INGREDIENT_REFERENCES = (
-    {"ingredient": "liquid ion heat capacity", "relation": ocp.PC2000_LIQUID.key,
-     "reference": ocp.PC2000_LIQUID.reference, "where": "cinderclock/cooling/ocp.py liquid_energy"},
-    {"ingredient": "crystal (harmonic, quantum)", "relation": ocp.BPY2001_HARMONIC.key,
-     "reference": ocp.BPY2001_HARMONIC.reference, "where": "cinderclock/cooling/ocp.py harmonic_lattice"},
-    {"ingredient": "crystal (anharmonic)", "relation": ocp.FH1993_ANHARMONIC.key,
-     "reference": ocp.FH1993_ANHARMONIC.reference, "where": "cinderclock/cooling/ocp.py anharmonic"},
+INGREDIENT_REFERENCES = tuple(_entry(*row) for row in (
+    ("liquid ion heat capacity", ocp.PC2000_LIQUID, "ocp.py liquid_energy"),
+    ("crystal (harmonic, quantum)", ocp.BPY2001_HARMONIC, "ocp.py harmonic_lattice"),
+    ("crystal (anharmonic)", ocp.FH1993_ANHARMONIC, "ocp.py anharmonic"),
+    ("C/O phase diagram", phasesep.MEDIN_CUMMING_2010, "phasesep.py phase_diagram"),
+    ("phase-separation energy", phasesep.ISERN_1997, "phasesep.py freezing_sequence"),
+    ("22Ne sedimentation", sed.DELOYE_BILDSTEN_2002, "sedimentation.py"),
+)) + (
     {"ingredient": "melting and latent heat", "relation": "free_energy_crossing",
      "reference": "Potekhin, A. Y. & Chabrier, G. 2000, PRE 62, 8554 (Gamma_m = 175); latent heat from the "
                   "liquid-solid entropy difference (about 0.77 kT per ion in Salaris, M. et al. 1997, ApJ 486, 413)",
@@ -172,12 +179,6 @@ INGREDIENT_REFERENCES = (
     {"ingredient": "C/O profile", "relation": "oxygen_profile",
      "reference": "shaped after Salaris, M. et al. 1997, ApJ 486, 413 (from memory)",
      "where": "cinderclock/cooling/coreprofile.py OxygenProfile"},
-    {"ingredient": "C/O phase diagram", "relation": phasesep.MEDIN_CUMMING_2010.key,
-     "reference": phasesep.MEDIN_CUMMING_2010.reference, "where": "cinderclock/cooling/phasesep.py phase_diagram"},
-    {"ingredient": "phase-separation energy", "relation": phasesep.ISERN_1997.key,
-     "reference": phasesep.ISERN_1997.reference, "where": "cinderclock/cooling/phasesep.py freezing_sequence"},
-    {"ingredient": "22Ne sedimentation", "relation": sed.DELOYE_BILDSTEN_2002.key,
-     "reference": sed.DELOYE_BILDSTEN_2002.reference, "where": "cinderclock/cooling/sedimentation.py"},
     {"ingredient": "neutrino emission", "relation": "itoh_1996",
      "reference": "Itoh, N., Hayashi, H., Nishikawa, A. & Kohyama, Y. 1996, ApJS 102, 411",
      "where": "cinderclock/cooling/neutrinos.py"},
@@ -382,10 +383,8 @@ def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profile
     e_lat = np.zeros((n_m, n_tc))
     e_sep = np.zeros((n_m, n_tc))
     e_cap = np.zeros(n_m)
-    n_ion = np.empty(n_m)
     for i, (p, m) in enumerate(zip(profiles, masses)):
         st = _star_setup(p, m, comp, sw, n_shell, sw.gamma_melt)
-        n_ion[i] = st["n_ion"]
         if sw.crystallization:
             qc[i] = _cumulative_on_grid(tc, st["t_start"], st["t_freeze"], st["weight"])
             if sw.latent_heat:
