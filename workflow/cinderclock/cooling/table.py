@@ -38,24 +38,39 @@ FAINT_LIMIT_LOG_LUM = -5.5
 #: Faintest tabulated luminosity (far future; 1e-18 Lsun is a white dwarf of a few kelvin).
 FAR_FUTURE_LOG_LUM = -18.0
 
+def _numerical_references():
+    from .tracks import INGREDIENT_REFERENCES
+
+    base = ["Itoh, N., Hayashi, H., Nishikawa, A. & Kohyama, Y. 1996, ApJS 102, 411 (neutrino emission)",
+            "Chandrasekhar, S. 1939, An Introduction to the Study of Stellar Structure (core structure)"]
+    return base + [r["reference"] for r in INGREDIENT_REFERENCES]
+
+
 MODEL_REFERENCES = {
-    "numerical": [
-        "Mestel, L. 1952, MNRAS 112, 583 (Kramers envelope; Shapiro & Teukolsky 1983, section 4.1)",
-        "Itoh, N., Hayashi, H., Nishikawa, A. & Kohyama, Y. 1996, ApJS 102, 411 (neutrino emission)",
-        "Potekhin, A. Y. & Chabrier, G. 2000, PRE 62, 8554 (melting at Gamma = 175)",
-        "Salaris, M. et al. 1997, ApJ 486, 413 (latent heat 0.77 kT per ion)",
-        "Chandrasekhar, S. 1939, An Introduction to the Study of Stellar Structure (T = 0 structure)",
-    ],
+    "numerical": None,        # filled from the ingredients of cinderclock.cooling.tracks (see model_references)
     "mestel": [
         "Mestel, L. 1952, MNRAS 112, 583; Shapiro & Teukolsky 1983, section 4.1",
         "Chandrasekhar, S. 1939, An Introduction to the Study of Stellar Structure (T = 0 radii)",
     ],
 }
 
+
+def model_references(kind):
+    """Reference list of a cooling model kind (``"numerical"`` or ``"mestel"``)."""
+    return _numerical_references() if kind == "numerical" else list(MODEL_REFERENCES[kind])
+
+
+def _numerical_caution(kramers):
+    from .tracks import CAUTIONS
+
+    head = ("Kramers envelope law (expert choice): no conduction or convective coupling, absolute ages off by "
+            "tens of per cent" if kramers else
+            "integrated grey-atmosphere envelope: unreliable below Teff ~ 5,500 K where non-grey atmospheres "
+            "matter (Rohrmann et al. 2012, A&A 546, A119)")
+    return "; ".join([head, *CAUTIONS])
+
+
 MODEL_CAUTIONS = {
-    "numerical": "isothermal core on a zero-temperature profile; Kramers envelope without convective "
-                 "coupling; ideal-gas ion liquid; no C/O phase separation or 22Ne sedimentation; absolute "
-                 "ages uncertain by tens of per cent through the envelope calibration",
     "mestel": "ion heat only, no neutrinos, no crystallization, no electron heat capacity; indicative ages",
 }
 
@@ -205,9 +220,9 @@ def build_cooling_table(model="numerical", masses=None, envelope="He", core="CO"
     kind = "numerical" if model == "numerical" else "mestel"
     df.attrs["cooling_model"] = {
         "name": f"cooling_{model}",
-        "reference": "; ".join(MODEL_REFERENCES[kind] + (list(getattr(env, "references", ())) if model == "numerical"
+        "reference": "; ".join(model_references(kind) + (list(getattr(env, "references", ())) if kind == "numerical"
                                                          else [])),
-        "caution": MODEL_CAUTIONS[kind if (model == "mestel" or finite_t) else "numerical_kramers"],
+        "caution": MODEL_CAUTIONS["mestel"] if kind == "mestel" else _numerical_caution(not finite_t),
         "faint_limit_log_lum": float(np.min(faint)),
         "radius": "finite-temperature radius of the envelope" if finite_t else "zero-temperature radius",
         "settings": settings,
@@ -223,7 +238,8 @@ def _columns():
         "log_lum": Column("dex(solLum)", "log10 photon luminosity in solar units", "phys.luminosity"),
         "age_yr": Column("yr", "Cooling age since the start of the white-dwarf track", "time.age"),
         "teff_k": Column("K", "Effective temperature from L = 4 pi R^2 sigma Teff^4", "phys.temperature.effective"),
-        "radius_rsun": Column("solRad", "Zero-temperature radius of the track", "phys.size.radius"),
+        "radius_rsun": Column("solRad", "Radius of the track (finite-temperature radius of the integrated envelope; "
+                                         "zero-temperature radius for the Kramers law)", "phys.size.radius"),
         "logg_cgs": Column("dex(cm/s2)", "log10 surface gravity", "phys.gravity"),
         "log_tc": Column("dex(K)", "log10 core temperature of the isothermal core", "phys.temperature"),
         "log_lum_nu": Column("dex(solLum)", "log10 neutrino luminosity (NaN where not modelled)", "phys.luminosity"),
