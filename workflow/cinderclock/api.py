@@ -57,13 +57,17 @@ class ModelSet:
         lum = config["luminosity"]
         user = lum["user_table"]["path"] if lum["spectra"] == "user_table" else None
         p_tab, _, p_ref = M.build_photometry_table(stage_settings(config, "photometry_model"), user_table_path=user)
-        m_tab, _, m_ref = M.build_mass_radius_table(stage_settings(config, "mass_radius_model"))
+        e_tab, _, _ = M.build_envelope_table(stage_settings(config, "envelope_model"))
+        envelope = M.load_envelope(e_tab)
+        m_tab, _, m_ref = M.build_mass_radius_table(stage_settings(config, "mass_radius_model"), envelope=envelope)
         cool = config["cooling"]
         tracks = (cool.get("user_tracks") or {}).get("path")
-        c_tab, _, c_ref = M.build_cooling_table(stage_settings(config, "cooling_model"), user_tracks_path=tracks)
+        c_tab, _, c_ref = M.build_cooling_table(stage_settings(config, "cooling_model"), user_tracks_path=tracks,
+                                                envelope=envelope)
         compare = None
         if cool["compare_with"]:
-            k_tab, _, _ = M.build_cooling_table(stage_settings(config, "cooling_model"), "compare", tracks)
+            k_tab, _, _ = M.build_cooling_table(stage_settings(config, "cooling_model"), "compare", tracks,
+                                                envelope=envelope)
             compare = M.load_cooling(k_tab)
         return cls(M.load_photometry(p_tab), M.load_mass_radius(m_tab), M.load_cooling(c_tab), compare,
                    {"photometry": p_ref, "mass_radius": m_ref, "cooling": c_ref})

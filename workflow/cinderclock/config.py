@@ -21,6 +21,7 @@ STAGE_SECTIONS = {
     "select": ("select", "astrometry", "bands"),
     "photometry_model": ("luminosity", "bands"),
     "luminosity": ("luminosity", "astrometry", "bands"),
+    "envelope_model": ("envelope", "mass.core"),
     "mass_radius_model": ("mass",),
     "mass": ("mass",),
     "cooling_model": ("cooling",),
@@ -92,7 +93,14 @@ def load_config(path):
 
 def stage_settings(config, stage):
     """The part of the configuration that ``stage`` depends on (a deep copy)."""
-    return {k: copy.deepcopy(config.get(k)) for k in STAGE_SECTIONS[stage]}
+    out = {}
+    for key in STAGE_SECTIONS[stage]:
+        section, _, sub = key.partition(".")
+        if sub:         # one key of a section (a stage that needs, say, only mass.core)
+            out.setdefault(section, {})[sub] = copy.deepcopy((config.get(section) or {}).get(sub))
+        else:
+            out[section] = copy.deepcopy(config.get(section))
+    return out
 
 
 def check_results_dir(config):

@@ -30,7 +30,28 @@ rule photometry_model:
         "../scripts/model_photometry.py"
 
 
+def envelope_table(wildcards):
+    """The integrated envelope table, for the mass-radius relation and the numerical cooling model."""
+    return {"envelope": f"{R}/models/envelope.parquet"}
+
+
+rule envelope_model:
+    output:
+        f"{R}/models/envelope.parquet",
+    log:
+        f"{R}/logs/models/envelope.log",
+    benchmark:
+        f"{R}/benchmarks/models/envelope.tsv",
+    params:
+        settings=settings("envelope_model"),
+    threads: 1
+    script:
+        "../scripts/model_envelope.py"
+
+
 rule mass_radius_model:
+    input:
+        unpack(envelope_table),
     output:
         f"{R}/models/mass_radius.parquet",
     log:
@@ -47,6 +68,7 @@ rule mass_radius_model:
 rule cooling_model:
     input:
         unpack(user_cooling_tracks),
+        unpack(envelope_table),
     output:
         f"{R}/models/cooling_{{which}}.parquet",
     log:

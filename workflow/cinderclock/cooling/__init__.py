@@ -8,6 +8,9 @@ neutrinos, heat_capacity, crystallization, composition, envelope
     Physics of the numerical model: Itoh et al. (1996) neutrino emissivities, ion (liquid/Debye
     solid) and electron heat capacities, coupling parameter / melting / latent heat, core
     mixtures, Kramers envelope relation with H/He presets and calibration.
+ocp, coreprofile, phasesep, sedimentation, budget
+    One-component-plasma thermodynamics (liquid, quantum crystal, melting, latent heat), the C/O
+    profile, C/O phase separation and its energy, 22Ne settling heat, and the shell sums.
 tracks
     Energy-budget integration of isothermal-core cooling for many masses at once.
 table, grid

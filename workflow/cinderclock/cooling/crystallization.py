@@ -14,9 +14,9 @@ The plasma freezes at Gamma_m = 175 (Potekhin & Chabrier 2000, PRE 62, 8554; the
 of Stringfellow, DeWitt & Slattery 1990 is available as :data:`GAMMA_MELT_SDS1990`). On freezing
 each ion releases a latent heat of about 0.77 k_B T_m (Salaris et al. 1997, ApJ 486, 413).
 
-Cautions: phase separation of C/O on crystallization (which releases extra gravitational energy)
-and the sedimentation of 22Ne are not modelled; mixtures freeze as if they were a one-component
-plasma of mean charge.
+Mixtures freeze here as if they were a one-component plasma of mean charge (linear mixing); the
+C/O phase diagram and the energy of phase separation are in :mod:`~cinderclock.cooling.phasesep`,
+the latent heat from the free energies in :mod:`~cinderclock.cooling.ocp`.
 """
 
 from __future__ import annotations

@@ -1,10 +1,10 @@
 """Heat capacities of a white-dwarf core: ions (liquid or Debye solid) and degenerate electrons.
 
 Ions
-    * Liquid: the ideal-gas value 3/2 k_B per ion. The Coulomb part of the liquid's heat capacity
-      (which grows towards ~3 k_B just before freezing) is *not* included: a documented
-      simplification that makes the liquid-to-solid step sharper than in detailed models.
-    * Solid: Debye theory, c_v = 3 k_B D(theta_D / T) per ion with the Debye function
+    * Liquid: the ideal-gas value 3/2 k_B per ion (the numerical model's default is the Coulomb
+      liquid of :mod:`~cinderclock.cooling.ocp`; this value is kept for ``coulomb_liquid=False``).
+    * Solid (option ``lattice="debye"``; the default is the quantum lattice of
+      :mod:`~cinderclock.cooling.ocp`): Debye theory, c_v = 3 k_B D(theta_D / T) per ion with the Debye function
       D(x) = (3 / x^3) int_0^x t^4 e^t / (e^t - 1)^2 dt, which tends to 1 (Dulong-Petit) for
       T >> theta_D and to (4 pi^4 / 5) x^-3 for T << theta_D, i.e. c_v = 233.78 k_B (T/theta_D)^3.
       theta_D is set in :mod:`cinderclock.cooling.crystallization`.

@@ -38,24 +38,39 @@ FAINT_LIMIT_LOG_LUM = -5.5
 #: Faintest tabulated luminosity (far future; 1e-18 Lsun is a white dwarf of a few kelvin).
 FAR_FUTURE_LOG_LUM = -18.0
 
+def _numerical_references():
+    from .tracks import INGREDIENT_REFERENCES
+
+    base = ["Itoh, N., Hayashi, H., Nishikawa, A. & Kohyama, Y. 1996, ApJS 102, 411 (neutrino emission)",
+            "Chandrasekhar, S. 1939, An Introduction to the Study of Stellar Structure (core structure)"]
+    return base + [r["reference"] for r in INGREDIENT_REFERENCES]
+
+
 MODEL_REFERENCES = {
-    "numerical": [
-        "Mestel, L. 1952, MNRAS 112, 583 (Kramers envelope; Shapiro & Teukolsky 1983, section 4.1)",
-        "Itoh, N., Hayashi, H., Nishikawa, A. & Kohyama, Y. 1996, ApJS 102, 411 (neutrino emission)",
-        "Potekhin, A. Y. & Chabrier, G. 2000, PRE 62, 8554 (melting at Gamma = 175)",
-        "Salaris, M. et al. 1997, ApJ 486, 413 (latent heat 0.77 kT per ion)",
-        "Chandrasekhar, S. 1939, An Introduction to the Study of Stellar Structure (T = 0 structure)",
-    ],
+    "numerical": None,        # filled from the ingredients of cinderclock.cooling.tracks (see model_references)
     "mestel": [
         "Mestel, L. 1952, MNRAS 112, 583; Shapiro & Teukolsky 1983, section 4.1",
         "Chandrasekhar, S. 1939, An Introduction to the Study of Stellar Structure (T = 0 radii)",
     ],
 }
 
+
+def model_references(kind):
+    """Reference list of a cooling model kind (``"numerical"`` or ``"mestel"``)."""
+    return _numerical_references() if kind == "numerical" else list(MODEL_REFERENCES[kind])
+
+
+def _numerical_caution(kramers):
+    from .tracks import CAUTIONS
+
+    head = ("Kramers envelope law (expert choice): no conduction or convective coupling, absolute ages off by "
+            "tens of per cent" if kramers else
+            "integrated grey-atmosphere envelope: unreliable below Teff ~ 5,500 K where non-grey atmospheres "
+            "matter (Rohrmann et al. 2012, A&A 546, A119)")
+    return "; ".join([head, *CAUTIONS])
+
+
 MODEL_CAUTIONS = {
-    "numerical": "isothermal core on a zero-temperature profile; Kramers envelope without convective "
-                 "coupling; ideal-gas ion liquid; no C/O phase separation or 22Ne sedimentation; absolute "
-                 "ages uncertain by tens of per cent through the envelope calibration",
     "mestel": "ion heat only, no neutrinos, no crystallization, no electron heat capacity; indicative ages",
 }
 
@@ -85,33 +100,48 @@ def _logg(mass_msun, radius_rsun):
     return logg_cgs(mass_msun, radius_rsun)
 
 
-def build_cooling_table(model="numerical", masses=None, envelope="He", core="CO", *, neutrinos=True,
-                        crystallization=True, latent_heat=True, electrons=True, calibration=None,
-                        log_lum_grid=None, profiles=None, faint_limit=FAINT_LIMIT_LOG_LUM, dlog_tc=0.005):
+def _radius_for(env, masses, log_lum, mu_e):
+    """Radius (Rsun) on the (mass, log L) grid: the envelope's finite-temperature radius where the
+    envelope object provides one, else the zero-temperature radius of each mass."""
+    n_m, n_l = log_lum.shape
+    if hasattr(env, "radius_rsun"):
+        r = np.asarray(env.radius_rsun(masses[:, None] * np.ones((1, n_l)), log_lum), dtype=float)
+        return r, True
+    return np.broadcast_to(_radius_sequence(masses, mu_e)[:, None], (n_m, n_l)), False
+
+
+def build_cooling_table(model="numerical", masses=None, envelope="He", core="CO", *, physics=None,
+                        calibration=None, log_lum_grid=None, profiles=None, faint_limit=FAINT_LIMIT_LOG_LUM,
+                        dlog_tc=0.005):
     """Tabulate cooling age, Teff and radius against mass and luminosity.
 
     Parameters
     ----------
     model : {"numerical", "mestel"}
-        The energy-budget model of :mod:`~cinderclock.cooling.tracks`, or Mestel's law with the
-        same envelope.
+        The energy-budget model of :mod:`~cinderclock.cooling.tracks`, or Mestel's law with a
+        Kramers envelope.
     masses : array_like, optional
         White-dwarf masses in Msun (default :data:`DEFAULT_MASSES_MSUN`).
-    envelope : str or EnvelopeModel
-        ``"He"`` or ``"H"`` (see :mod:`~cinderclock.cooling.envelope`).
+    envelope : str or object
+        ``"He"`` or ``"H"`` (Kramers presets of :mod:`~cinderclock.cooling.envelope`), or an envelope
+        object with ``log_lum(mass, log_tc)``, ``log_tc(mass, log_lum)`` and optionally
+        ``radius_rsun(mass, log_lum)``, ``faint_limit_log_lum(mass)`` and ``as_model()`` (the
+        integrated envelope of :mod:`cinderclock.envelope`). Mestel's law needs a Kramers preset.
     core : str or CoreComposition
-        Core composition (default C/O 50:50 by mass).
-    neutrinos, crystallization, latent_heat, electrons : bool
-        Physics switches of the numerical model (ignored by ``"mestel"``).
+        Core composition.
+    physics : dict or PhysicsSwitches, optional
+        Physics switches of the numerical model (:class:`~cinderclock.cooling.tracks.PhysicsSwitches`
+        fields; ignored by ``"mestel"``). Default: everything on.
     calibration : float, optional
-        Envelope calibration factor (see :func:`~cinderclock.cooling.envelope.calibration_for_coefficient`).
+        Kramers-envelope calibration factor (expert option; see
+        :func:`~cinderclock.cooling.envelope.calibration_for_coefficient`).
     log_lum_grid : array_like, optional
         Descending log10 L/Lsun nodes (default :func:`default_log_lum_grid`).
     profiles : list of dict, optional
-        Structure profiles, one per mass (numerical model only); default zero-temperature
-        Chandrasekhar profiles.
+        Structure profiles, one per mass (numerical model only).
     faint_limit : float
-        Rows fainter than this are marked ``far_future``.
+        Rows fainter than this (or than the envelope's own faint limit, where it has one) are marked
+        ``far_future``.
     dlog_tc : float
         Integration step in log10 T_c (numerical model).
 
@@ -124,7 +154,12 @@ def build_cooling_table(model="numerical", masses=None, envelope="He", core="CO"
 
     masses = np.asarray(DEFAULT_MASSES_MSUN if masses is None else masses, dtype=float)
     grid = np.asarray(default_log_lum_grid() if log_lum_grid is None else log_lum_grid, dtype=float)
-    env = envelope_model(envelope, calibration)
+    if isinstance(envelope, str):
+        env = envelope_model(envelope, calibration)
+    else:
+        env = envelope
+        if calibration is not None:
+            raise ValueError("a calibration factor applies to the Kramers envelope presets only")
     comp = core_composition(core)
     n_m, n_l = masses.size, grid.size
     log_lum = np.broadcast_to(grid, (n_m, n_l))
@@ -132,8 +167,10 @@ def build_cooling_table(model="numerical", masses=None, envelope="He", core="CO"
     if model == "numerical":
         from .tracks import PhysicsSwitches, cooling_tracks
 
-        sw = PhysicsSwitches(neutrinos=neutrinos, crystallization=crystallization, latent_heat=latent_heat,
-                             electrons=electrons)
+        if isinstance(physics, PhysicsSwitches):
+            sw = physics
+        else:
+            sw = PhysicsSwitches(**(physics or {}))
         tr = cooling_tracks(masses, env, comp, sw, profiles=profiles, log_lum_end=float(grid.min()),
                             dlog_tc=dlog_tc)
         age = np.empty((n_m, n_l))
@@ -148,19 +185,23 @@ def build_cooling_table(model="numerical", masses=None, envelope="He", core="CO"
                                left=np.nan, right=np.nan)
             qc[i] = np.interp(-grid, x, tr.crystallized_fraction[i], left=np.nan, right=np.nan)
         lnu = np.where(lnu < -90.0, -np.inf, lnu)
-        radius = np.broadcast_to(tr.radius_rsun[:, None], (n_m, n_l))
         settings = tr.settings
     elif model == "mestel":
+        if not hasattr(env, "constant_cgs"):
+            raise ValueError("Mestel's law needs a Kramers envelope preset ('He' or 'H')")
         k = mestel.age_coefficient_yr(comp.abar, envelope_cgs=env.constant_cgs())
         mm = masses[:, None]
         age = mestel.cooling_age_yr(mm, log_lum, k)
         log_tc = env.log_tc(mm, log_lum)
         lnu = np.full((n_m, n_l), np.nan)
         qc = np.full((n_m, n_l), np.nan)
-        radius = np.broadcast_to(_radius_sequence(masses, comp.mu_e)[:, None], (n_m, n_l))
         settings = {"envelope": env.as_model(), "core": comp.key, "age_coefficient_yr": float(k)}
     else:
         raise ValueError(f"unknown cooling model {model!r}; choose 'numerical' or 'mestel'")
+    radius, finite_t = _radius_for(env, masses, log_lum, comp.mu_e)
+    faint = np.full(n_m, float(faint_limit))
+    if hasattr(env, "faint_limit_log_lum"):
+        faint = np.maximum(faint, np.asarray(env.faint_limit_log_lum(masses), dtype=float))
 
     mass2 = np.broadcast_to(masses[:, None], (n_m, n_l))
     df = pd.DataFrame({
@@ -173,14 +214,17 @@ def build_cooling_table(model="numerical", masses=None, envelope="He", core="CO"
         "log_tc": log_tc.ravel(),
         "log_lum_nu": lnu.ravel(),
         "crystallized_fraction": qc.ravel(),
-        "far_future": (log_lum < faint_limit).ravel(),
+        "far_future": (log_lum < faint[:, None]).ravel(),
     })
     df = df[np.isfinite(df["age_yr"].to_numpy())].reset_index(drop=True)
+    kind = "numerical" if model == "numerical" else "mestel"
     df.attrs["cooling_model"] = {
         "name": f"cooling_{model}",
-        "reference": "; ".join(MODEL_REFERENCES[model]),
-        "caution": MODEL_CAUTIONS[model],
-        "faint_limit_log_lum": faint_limit,
+        "reference": "; ".join(model_references(kind) + (list(getattr(env, "references", ())) if kind == "numerical"
+                                                         else [])),
+        "caution": MODEL_CAUTIONS["mestel"] if kind == "mestel" else _numerical_caution(not finite_t),
+        "faint_limit_log_lum": float(np.min(faint)),
+        "radius": "finite-temperature radius of the envelope" if finite_t else "zero-temperature radius",
         "settings": settings,
     }
     return df
@@ -194,7 +238,8 @@ def _columns():
         "log_lum": Column("dex(solLum)", "log10 photon luminosity in solar units", "phys.luminosity"),
         "age_yr": Column("yr", "Cooling age since the start of the white-dwarf track", "time.age"),
         "teff_k": Column("K", "Effective temperature from L = 4 pi R^2 sigma Teff^4", "phys.temperature.effective"),
-        "radius_rsun": Column("solRad", "Zero-temperature radius of the track", "phys.size.radius"),
+        "radius_rsun": Column("solRad", "Radius of the track (finite-temperature radius of the integrated envelope; "
+                                         "zero-temperature radius for the Kramers law)", "phys.size.radius"),
         "logg_cgs": Column("dex(cm/s2)", "log10 surface gravity", "phys.gravity"),
         "log_tc": Column("dex(K)", "log10 core temperature of the isothermal core", "phys.temperature"),
         "log_lum_nu": Column("dex(solLum)", "log10 neutrino luminosity (NaN where not modelled)", "phys.luminosity"),

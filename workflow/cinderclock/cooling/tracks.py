@@ -3,45 +3,53 @@
 Model
 -----
 The core is isothermal at T_c and has the density profile of the zero-temperature structure
-(:func:`cinderclock.massradius.chandrasekhar.structure_profile`, or any profile passed in). Energy
-conservation reads
+(:func:`cinderclock.massradius.chandrasekhar.structure_profile`, or any profile passed in), cut into
+equal-mass shells, each with its own composition (an oxygen-rich centre for C/O cores,
+:mod:`~cinderclock.cooling.coreprofile`). Energy conservation reads
 
-    L_photon(T_c) + L_neutrino(T_c) = -dU/dt,
-    dU = [ C_ion(T_c) + C_el(T_c) ] dT_c + l k_B T_c N_ion dq(T_c),
+    L_photon(T_c) + L_nu(T_c) - L_22(T_c) = -dU/dt,
+    dU = C(T_c) dT_c - dE_latent(T_c) - dE_sep(T_c),
 
 where
 
-* L_photon = f C M T_c^(7/2) is the Kramers envelope relation (:mod:`~cinderclock.cooling.envelope`),
-* L_neutrino = M int eps_nu(rho(m), T_c) dm with the Itoh et al. (1996) emissivities
-  (:mod:`~cinderclock.cooling.neutrinos`),
-* C_ion sums 3/2 k_B per liquid ion and the Debye heat capacity of crystallised shells,
-* C_el is the heat capacity of the degenerate electrons (:mod:`~cinderclock.cooling.heat_capacity`),
-* q(T_c) is the crystallised mass fraction (shells where the coupling parameter exceeds
-  Gamma_m = 175; crystallization proceeds outward because density falls outward), and
-  l = 0.77 the latent heat per ion in units of k_B T_m.
+* L_photon(M, T_c) comes from the envelope object (anything with ``log_lum(mass, log_tc)`` and
+  ``log_tc(mass, log_lum)``; the Kramers relation of :mod:`~cinderclock.cooling.envelope` or an
+  integrated envelope table);
+* L_nu = M int eps_nu(rho, T_c; Abar, Zbar of the shell) dm, Itoh et al. (1996);
+* C sums, shell by shell, the ion heat capacity of the one-component plasma by linear mixing -- the
+  Coulomb liquid (Potekhin & Chabrier 2000) or the quantum crystal (Baiko, Potekhin & Yakovlev 2001
+  plus anharmonic terms), :mod:`~cinderclock.cooling.ocp` -- and the degenerate electrons;
+* E_latent: each shell releases k T_f Delta s per ion when it freezes at T_f, with Delta s from the
+  liquid-solid free energies (about 0.75 k per ion at Gamma_m);
+* E_sep: the gravitational energy released when crystallization separates C and O
+  (:mod:`~cinderclock.cooling.phasesep`: Medin & Cumming 2010 phase diagram, Isern et al. 1997
+  energy);
+* L_22: the heat of 22Ne settling in the liquid (Deloye & Bildsten 2002), capped at the energy of
+  full settling (:mod:`~cinderclock.cooling.sedimentation`).
 
-Every quantity is a function of T_c alone, so the cooling age is a quadrature over T_c:
+Every term is a function of T_c (freezing temperatures and separation energies are precomputed per
+shell), so the cooling age stays a quadrature over T_c,
 
-    t(T_c) = int_{T_c}^{inf} [ (C_ion + C_el) + l k_B T N_ion dq/dT ] / (L_photon + L_neutrino) dT.
+    t(T_c) = int_{T_c}^{inf} [C dT + dE_latent + dE_sep] / (L_photon + L_nu - L_22),
 
-It is evaluated on a fine grid of log T_c for all masses at once; on each interval the integrand
-is taken as a power law in T (exact for Mestel's law). Above the start temperature the integrand
-is continued as the power law of the first interval, so ages count from T_c = infinity as in
-Mestel's law (this adds well under 1e5 yr).
+evaluated on a fine grid of log T_c for all masses (power law in T on each interval, exact for
+Mestel's law); the 22Ne cap makes the sum sequential along the grid. Above the start temperature the
+integrand is continued as a power law, so ages count from T_c = infinity as in Mestel's law.
 
-With neutrinos, crystallization and electrons switched off the model is exactly Mestel's law:
-U = (3/2) N_ion k_B T_c and t = (2/5) U / L.
+With every switch off (no neutrinos, crystallization, electrons, Coulomb liquid, stratification, 22Ne)
+the model is exactly Mestel's law, U = (3/2) N_ion k_B T_c and t = (2/5) U / L.
 
 Cautions (systematics that remain)
 ----------------------------------
-* Isothermal core, zero-temperature density profile: no thermal structure, no contraction
-  energy; hot (young) white dwarfs are larger and their ages uncertain at the 1e6-1e7 yr level.
-* Simplified envelope: single Kramers opacity law, no convective coupling (which speeds late
-  cooling), no H/He layering; the envelope calibration changes ages by tens of per cent.
-* Ion liquid at the ideal-gas heat capacity (no Coulomb liquid term); Debye solid with
-  theta_D = 0.45 T_p.
-* No C/O phase separation, no 22Ne sedimentation (both delay cooling in real white dwarfs by up
-  to ~1-2 Gyr at the faint end, from memory), no residual nuclear burning.
+* Isothermal core on the zero-temperature density profile: no thermal structure, no contraction
+  energy; hot (young) white dwarfs carry age uncertainties at the 1e6-1e7 yr level.
+* The C/O profile is one documented shape for every mass (from memory of published profiles).
+* Phase separation: instantaneous, complete mixing of the liquid (an upper bound on its efficiency);
+  liquid phase diagram from linear mixing; no 22Ne distillation.
+* 22Ne: uniform-trace settling rate, no depletion profile; the diffusion coefficient is uncertain by
+  about a factor of two in the literature.
+* Quantum liquid approximated by the harmonic-lattice suppression factor; electron-ion screening
+  corrections to the ion free energies are neglected.
 * Neutrino emission uses the Itoh et al. fits only for T >= 1e7 K.
 """
 
@@ -52,10 +60,13 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..constants import K_B_SI, L_SUN_W, M_SUN_KG, M_U_SI, YR_S
+from . import budget
 from . import crystallization as cryst
-from . import heat_capacity as hc
-from . import neutrinos as nu
+from . import ocp
+from . import phasesep
+from . import sedimentation as sed
 from .composition import core_composition
+from .coreprofile import DEFAULT_OXYGEN_PROFILE, oxygen_number_fraction, shell_mixture
 from .envelope import envelope_model
 
 _ERG = 1e7
@@ -67,6 +78,9 @@ _L_SUN_ERG_S = L_SUN_W * _ERG
 #: Densities (g cm^-3) below which shells are ignored in the neutrino and heat-capacity sums
 #: (the envelope; a negligible mass fraction).
 RHO_FLOOR_CGS = 1.0
+#: Floor on the net loss rate, as a fraction of the photon + neutrino losses, when 22Ne heating
+#: nearly balances them (stalls are counted in the settings as ``ne22_stall_nodes``).
+NET_LOSS_FLOOR = 0.02
 
 
 @dataclass(frozen=True)
@@ -78,31 +92,108 @@ class PhysicsSwitches:
     neutrinos : bool
         Thermal neutrino losses (Itoh et al. 1996).
     crystallization : bool
-        Freezing of the ions at Gamma_m and the Debye heat capacity of the solid. Off: the ions
-        stay an ideal liquid (3/2 k_B per ion) at all temperatures.
+        Freezing of the ions. Off: the ions stay liquid at all temperatures.
     latent_heat : bool
         Release of the latent heat on freezing (only with ``crystallization``).
     electrons : bool
         Heat capacity of the degenerate electrons.
+    coulomb_liquid : bool
+        Coulomb (excess) heat capacity of the liquid, Potekhin & Chabrier (2000), with the quantum
+        factor. Off: the ideal-gas 3/2 k_B per ion.
+    lattice : str
+        ``"bpy2001"`` (harmonic quantum crystal of Baiko, Potekhin & Yakovlev 2001) or ``"debye"``
+        (3 k_B D(theta_D / T) with theta_D = ``debye_to_plasma`` T_p).
+    anharmonic : bool
+        Anharmonic heat capacity of the crystal (Farouki & Hamaguchi 1993; with ``"bpy2001"``).
+    stratified_core : bool
+        Oxygen-rich centre for C/O cores (:mod:`~cinderclock.cooling.coreprofile`). Off: the core
+        composition's uniform proportions.
+    phase_separation : bool
+        C/O phase separation on freezing and its energy (C/O cores, with ``crystallization``).
+    ne22_sedimentation : bool
+        Heat of 22Ne settling in the liquid.
+    ne22_mass_fraction : float
+        22Ne mass fraction (about the progenitor's metallicity Z; 0.014 is about solar).
     gamma_melt : float
-        Coupling parameter at melting.
-    latent_heat_kt : float
-        Latent heat per ion in units of k_B T_m.
+        Coupling parameter at melting of the one-component plasma (without phase separation).
+    latent_heat_kt : float or None
+        Latent heat per ion in k_B T_m; None computes it from the liquid and solid free energies
+        at ``gamma_melt`` (:func:`cinderclock.cooling.ocp.latent_heat_kt`).
     debye_to_plasma : float
-        theta_D / T_p.
+        theta_D / T_p for ``lattice="debye"``.
     """
 
     neutrinos: bool = True
     crystallization: bool = True
     latent_heat: bool = True
     electrons: bool = True
+    coulomb_liquid: bool = True
+    lattice: str = "bpy2001"
+    anharmonic: bool = True
+    stratified_core: bool = True
+    phase_separation: bool = True
+    ne22_sedimentation: bool = True
+    ne22_mass_fraction: float = 0.014
     gamma_melt: float = cryst.GAMMA_MELT
-    latent_heat_kt: float = cryst.LATENT_HEAT_KT
+    latent_heat_kt: float | None = None
     debye_to_plasma: float = cryst.DEBYE_TO_PLASMA
+
+    def __post_init__(self):
+        if self.lattice not in ("bpy2001", "debye"):
+            raise ValueError(f"lattice must be 'bpy2001' or 'debye', not {self.lattice!r}")
+        if not 0.0 <= self.ne22_mass_fraction < 0.2:
+            raise ValueError("ne22_mass_fraction must lie in [0, 0.2)")
+
+    def latent_heat_per_ion_kt(self):
+        """Latent heat per ion in units of k_B T_m actually used."""
+        if self.latent_heat_kt is not None:
+            return float(self.latent_heat_kt)
+        return ocp.latent_heat_kt(self.gamma_melt)
 
     def as_dict(self):
         """Plain mapping for provenance."""
-        return {k: getattr(self, k) for k in self.__dataclass_fields__}
+        d = {k: getattr(self, k) for k in self.__dataclass_fields__}
+        d["latent_heat_kt_used"] = self.latent_heat_per_ion_kt()
+        return d
+
+
+def _entry(ingredient, relation, where):
+    """Reference entry of one ingredient from its PublishedRelation."""
+    return {"ingredient": ingredient, "relation": relation.key, "reference": relation.reference,
+            "where": f"cinderclock/cooling/{where}"}
+
+
+#: References of the ingredients, as data (for the tracks' settings and the table's provenance).
+INGREDIENT_REFERENCES = tuple(_entry(*row) for row in (
+    ("liquid ion heat capacity", ocp.PC2000_LIQUID, "ocp.py liquid_energy"),
+    ("crystal (harmonic, quantum)", ocp.BPY2001_HARMONIC, "ocp.py harmonic_lattice"),
+    ("crystal (anharmonic)", ocp.FH1993_ANHARMONIC, "ocp.py anharmonic"),
+    ("C/O phase diagram", phasesep.MEDIN_CUMMING_2010, "phasesep.py phase_diagram"),
+    ("phase-separation energy", phasesep.ISERN_1997, "phasesep.py freezing_sequence"),
+    ("22Ne sedimentation", sed.DELOYE_BILDSTEN_2002, "sedimentation.py"),
+)) + (
+    {"ingredient": "melting and latent heat", "relation": "free_energy_crossing",
+     "reference": "Potekhin, A. Y. & Chabrier, G. 2000, PRE 62, 8554 (Gamma_m = 175); latent heat from the "
+                  "liquid-solid entropy difference (about 0.77 kT per ion in Salaris, M. et al. 1997, ApJ 486, 413)",
+     "where": "cinderclock/cooling/ocp.py melting_gamma, latent_heat_kt"},
+    {"ingredient": "C/O profile", "relation": "oxygen_profile",
+     "reference": "shaped after Salaris, M. et al. 1997, ApJ 486, 413 (from memory)",
+     "where": "cinderclock/cooling/coreprofile.py OxygenProfile"},
+    {"ingredient": "neutrino emission", "relation": "itoh_1996",
+     "reference": "Itoh, N., Hayashi, H., Nishikawa, A. & Kohyama, Y. 1996, ApJS 102, 411",
+     "where": "cinderclock/cooling/neutrinos.py"},
+)
+
+#: Honest cautions of the numerical model (see the module docstring).
+CAUTIONS = (
+    "isothermal core on the zero-temperature density profile (no contraction energy)",
+    "one C/O profile shape for every mass, read from memory of published profiles",
+    "phase separation with instantaneous complete mixing (upper bound on its efficiency); "
+    "linear-mixing liquid in the phase diagram; no 22Ne distillation",
+    "22Ne settling at the uniform-trace rate with an energy cap (no depletion profile); the diffusion "
+    "coefficient is uncertain by about a factor of two",
+    "quantum liquid approximated by the lattice suppression factor; no electron screening corrections",
+)
 
 
 def default_profile(mass_msun, core="CO", n_points=200):
@@ -136,6 +227,12 @@ class Tracks:
         Crystallised mass fraction.
     settings : dict
         The choices the tracks were built with (for provenance).
+    log_lum_ne22 : array
+        log10 of the 22Ne settling heat (Lsun) actually applied; -inf where zero.
+    separation_energy_erg : array
+        Cumulative energy released by C/O phase separation (erg).
+    latent_energy_erg : array
+        Cumulative latent heat released (erg).
     """
 
     mass_msun: np.ndarray
@@ -146,15 +243,9 @@ class Tracks:
     age_yr: np.ndarray
     crystallized_fraction: np.ndarray
     settings: dict = field(default_factory=dict)
-
-
-def _resample_profile(profile, n_shell):
-    """Mid-shell densities of ``n_shell`` equal-mass shells, and the full-resolution arrays."""
-    q = np.asarray(profile["mass_fraction"], dtype=float)
-    rho = np.asarray(profile["rho_cgs"], dtype=float)
-    edges = np.linspace(0.0, 1.0, n_shell + 1)
-    mid = 0.5 * (edges[1:] + edges[:-1])
-    return np.interp(mid, q, rho), q, rho
+    log_lum_ne22: np.ndarray | None = None
+    separation_energy_erg: np.ndarray | None = None
+    latent_energy_erg: np.ndarray | None = None
 
 
 def _profile_radius(profile, mass_msun, mu_e):
@@ -177,40 +268,61 @@ def _segment_integral(f0, f1, dx):
     return np.where(ok, powerlaw, trap)
 
 
-#: Masses integrated together in one block of (mass, T_c, shell) arrays.
-_MASS_CHUNK = 4
+def resolve_envelope(envelope):
+    """An envelope object: a preset key of :mod:`~cinderclock.cooling.envelope`, or any object with
+    ``log_lum(mass_msun, log_tc)`` and ``log_tc(mass_msun, log_lum)`` passed through."""
+    if hasattr(envelope, "log_lum") and hasattr(envelope, "log_tc"):
+        return envelope
+    return envelope_model(envelope)
 
 
-def _shell_sums(rho_shell, weight, tc, comp, sw):
-    """Mass-weighted heat capacity (k_B per g) and neutrino emissivity (erg g^-1 s^-1).
-
-    ``rho_shell`` and ``weight`` have shape (n_mass, n_shell); ``tc`` shape (n_tc,). Returns two
-    arrays of shape (n_mass, n_tc).
-    """
-    ions_per_g = comp.ions_per_mu / _M_U_G
-    electrons_per_g = comp.ye / _M_U_G
-    t3 = tc[None, :, None]                                         # (1, n_tc, 1)
-    rho3 = rho_shell[:, None, :]                                   # (n_mass, 1, n_shell)
-    w3 = weight[:, None, :]
-    if sw.crystallization:
-        solid = t3 < cryst.melting_temperature_k(rho3, comp, sw.gamma_melt)
-        theta = cryst.debye_temperature_k(rho3, comp, sw.debye_to_plasma)
-        c_ion = hc.ion_heat_capacity_kb(t3, theta, solid)
+def _star_setup(profile, mass_msun, comp, sw, n_shell, gamma_melt):
+    """Per-shell arrays of one star and its freezing sequence."""
+    q = np.asarray(profile["mass_fraction"], dtype=float)
+    rho_full = np.asarray(profile["rho_cgs"], dtype=float)
+    edges = np.linspace(0.0, 1.0, n_shell + 1)
+    mid = 0.5 * (edges[1:] + edges[:-1])
+    rho = np.interp(mid, q, rho_full)
+    weight = np.where(rho > RHO_FLOOR_CGS, 1.0 / n_shell, 0.0)
+    mix = shell_mixture(comp, mid, stratified=sw.stratified_core, profile=DEFAULT_OXYGEN_PROFILE)
+    gravity = sed.shell_gravity_cgs(profile, mid)[0]
+    x_sol_nf = None
+    sep_energy = np.zeros(n_shell)
+    rho_c = float(rho_full[0])
+    if mix.is_co:
+        i_o = int(np.argmax(mix.z))
+        xo = mix.mass_fractions[:, i_o]
+        seq = phasesep.freezing_sequence(rho, xo, weight, separate=sw.phase_separation, gamma_melt=gamma_melt)
+        t_f = seq["t_freeze_k"]
+        sep_energy = seq["energy_per_mass"] * mass_msun * _M_SUN_G
+        xs_n = oxygen_number_fraction(seq["x_o_solid"])
+        x_sol_nf = np.empty((n_shell, 2))
+        x_sol_nf[:, i_o], x_sol_nf[:, 1 - i_o] = xs_n, 1.0 - xs_n
+        # freezing of the very centre: the front starts at the central density
+        t_start = t_f[0] * np.cbrt(rho_c / rho[0])
     else:
-        c_ion = np.full((1, 1, 1), 1.5)
-    cap = np.sum(w3 * c_ion, axis=2) * ions_per_g
-    if sw.electrons:
-        c_el = hc.electron_heat_capacity_kb(t3, np.maximum(rho3, RHO_FLOOR_CGS), comp.ye)
-        cap = cap + np.sum(w3 * c_el, axis=2) * electrons_per_g
-    cap = np.broadcast_to(cap, (rho_shell.shape[0], tc.size))
-    eps_mean = np.zeros((rho_shell.shape[0], tc.size))
-    if sw.neutrinos:
-        hot = tc >= nu.T_MIN_K
-        if np.any(hot):
-            eps = nu.emissivity_erg_g_s(rho3 * np.ones((1, int(hot.sum()), 1)), t3[:, hot, :],
-                                        comp.abar, comp.zbar)
-            eps_mean[:, hot] = np.sum(w3 * eps, axis=2)
-    return cap, eps_mean
+        coef = cryst.coupling_coefficient_cgs(comp)
+        t_f = np.minimum.accumulate(coef * np.cbrt(rho) / gamma_melt)
+        t_start = coef * np.cbrt(rho_c) / gamma_melt
+    ions = weight * mix.ions_per_mu / _M_U_G * mass_msun * _M_SUN_G          # ions per shell
+    latent = sw.latent_heat_per_ion_kt() * _K_B_CGS * t_f * ions
+    return {"rho": rho, "weight": weight, "mix": mix, "gravity": gravity, "t_freeze": t_f,
+            "t_start": t_start, "x_solid_nf": x_sol_nf, "latent": latent, "separation": sep_energy,
+            "n_ion": float(np.sum(ions))}
+
+
+def _cumulative_on_grid(tc, t_start, t_freeze, per_shell):
+    """Cumulative release (per shell, released at its freezing temperature) as a function of T_c.
+
+    Piecewise linear in T through (t_start, 0) and the shell centres (T_f,k, sum_{j<k} + half of k).
+    """
+    cum = np.cumsum(per_shell) - 0.5 * per_shell
+    t_nodes = np.concatenate([[max(t_start, t_freeze[0])], t_freeze])
+    c_nodes = np.concatenate([[0.0], cum])
+    total = float(np.sum(per_shell))
+    # np.interp needs increasing x: T decreases along the shells
+    out = np.interp(tc, t_nodes[::-1], c_nodes[::-1], left=total, right=0.0)
+    return out
 
 
 def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profiles=None,
@@ -221,16 +333,18 @@ def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profile
     ----------
     masses_msun : array_like
         White-dwarf masses in Msun.
-    envelope : str or EnvelopeModel
-        Envelope preset (``"H"`` or ``"He"``) or model.
+    envelope : str or object
+        Envelope preset (``"H"`` or ``"He"``) or any object with ``log_lum(mass_msun, log_tc)`` and
+        ``log_tc(mass_msun, log_lum)`` (broadcasting over arrays), e.g. an EnvelopeModel or an
+        integrated envelope table; ``as_model()`` is recorded when present.
     core : str or CoreComposition
         Core composition key (``"CO"``, ``"C"``, ``"O"``, ``"ONe"``, ``"He"``).
     switches : PhysicsSwitches, optional
         Physics included (all on by default).
     profiles : list of dict, optional
         One structure profile per mass, each with arrays ``mass_fraction`` (0 to 1, increasing)
-        and ``rho_cgs`` (g cm^-3), and optionally ``total_radius_rsun``. Default: the
-        zero-temperature Chandrasekhar profiles (:func:`default_profile`).
+        and ``rho_cgs`` (g cm^-3), optionally ``radius_rsun``/``mass_msun`` and
+        ``total_radius_rsun``. Default: the zero-temperature Chandrasekhar profiles.
     log_tc_start : float
         log10 of the hottest core temperature (K) integrated.
     log_lum_end : float
@@ -238,14 +352,14 @@ def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profile
     dlog_tc : float
         Step in log10 T_c.
     n_shell : int
-        Number of equal-mass shells for the neutrino and heat-capacity sums.
+        Number of equal-mass shells.
 
     Returns
     -------
     Tracks
     """
     sw = switches or PhysicsSwitches()
-    env = envelope_model(envelope)
+    env = resolve_envelope(envelope)
     comp = core_composition(core)
     masses = np.atleast_1d(np.asarray(masses_msun, dtype=float))
     if profiles is None:
@@ -254,50 +368,75 @@ def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profile
         raise ValueError("one structure profile per mass is needed")
 
     # temperature grid: deep enough that the brightest mass reaches log_lum_end
-    log_tc_end = float(np.min(env.log_tc(masses, log_lum_end))) - 2 * dlog_tc
+    log_tc_end = float(np.min(env.log_tc(masses, np.full(masses.shape, log_lum_end)))) - 2 * dlog_tc
     n_tc = int(np.ceil((log_tc_start - log_tc_end) / dlog_tc)) + 1
     log_tc = log_tc_start - dlog_tc * np.arange(n_tc)
     tc = 10.0**log_tc                                              # (n_tc,)
-
-    shells = [_resample_profile(p, n_shell) for p in profiles]
-    rho_shell = np.stack([s[0] for s in shells])                  # (n_mass, n_shell)
-    live = rho_shell > RHO_FLOOR_CGS
-    weight = np.where(live, 1.0 / n_shell, 0.0)                   # mass fraction of each shell
+    n_m = masses.size
+    mass_g = masses * _M_SUN_G
     radius = np.array([_profile_radius(p, m, comp.mu_e) for p, m in zip(profiles, masses)])
 
-    mass_g = masses * _M_SUN_G                                     # (n_mass,)
-    n_ion = mass_g * comp.ions_per_mu / _M_U_G                                    # (n_mass,)
-
-    # crystallised fraction from the full-resolution profiles
-    if sw.crystallization:
-        qc = np.stack([cryst.crystallized_mass_fraction(tc, s[1], s[2], comp, sw.gamma_melt) for s in shells])
-    else:
-        qc = np.zeros((masses.size, n_tc))
-
-    # heat capacity (k_B per gram) and mean neutrino emissivity (erg g^-1 s^-1) on the
-    # (mass, T_c) grid, a few masses at a time to bound the memory of the (mass, T_c, shell) arrays
-    cap = np.empty((masses.size, n_tc))
-    eps_mean = np.zeros((masses.size, n_tc))
-    for lo in range(0, masses.size, _MASS_CHUNK):
-        sl = slice(lo, lo + _MASS_CHUNK)
-        cap[sl], eps_mean[sl] = _shell_sums(rho_shell[sl], weight[sl], tc, comp, sw)
+    cap = np.empty((n_m, n_tc))
+    eps_nu = np.empty((n_m, n_tc))
+    eps_ne = np.empty((n_m, n_tc))
+    qc = np.zeros((n_m, n_tc))
+    e_lat = np.zeros((n_m, n_tc))
+    e_sep = np.zeros((n_m, n_tc))
+    e_cap = np.zeros(n_m)
+    for i, (p, m) in enumerate(zip(profiles, masses)):
+        st = _star_setup(p, m, comp, sw, n_shell, sw.gamma_melt)
+        if sw.crystallization:
+            qc[i] = _cumulative_on_grid(tc, st["t_start"], st["t_freeze"], st["weight"])
+            if sw.latent_heat:
+                e_lat[i] = _cumulative_on_grid(tc, st["t_start"], st["t_freeze"], st["latent"])
+            e_sep[i] = _cumulative_on_grid(tc, st["t_start"], st["t_freeze"], st["separation"])
+        sums = budget.shell_sums(tc, st["rho"], st["weight"], st["mix"], st["t_freeze"], st["gravity"], sw,
+                                 x_solid_fractions=st["x_solid_nf"])
+        cap[i], eps_nu[i], eps_ne[i] = sums["cap_kb_per_g"], sums["eps_nu"], sums["eps_ne22"]
+        if sw.ne22_sedimentation:
+            e_cap[i] = sed.settling_energy_cap_erg(p, mass_g[i], sw.ne22_mass_fraction)
+    qc = np.clip(qc, 0.0, 1.0)
     dU_dT = cap * _K_B_CGS * mass_g[:, None]                        # erg K^-1
 
     # luminosities in erg s^-1
-    l_photon = env.constant_cgs() * masses[:, None] * tc[None, :] ** 3.5
-    l_nu = eps_mean * mass_g[:, None]
-    l_total = l_photon + l_nu
-
-    # time per unit ln T: integrand (erg K^-1 * K / erg s^-1) = s
-    f = dU_dT * tc[None, :] / l_total                              # (n_mass, n_tc)
+    l_photon = 10.0 ** env.log_lum(masses[:, None], log_tc[None, :]) * _L_SUN_ERG_S
+    l_photon = np.broadcast_to(l_photon, (n_m, n_tc))
+    l_nu = eps_nu * mass_g[:, None]
+    l_ne = eps_ne * mass_g[:, None]
+    l_out = l_photon + l_nu
     dx = dlog_tc * np.log(10.0)
-    dt_heat = _segment_integral(f[:, :-1], f[:, 1:], dx)
-    dt = dt_heat
-    if sw.crystallization and sw.latent_heat:
-        t_mid = np.sqrt(tc[:-1] * tc[1:])
-        l_mid = np.sqrt(l_total[:, :-1] * l_total[:, 1:])
-        d_lat = sw.latent_heat_kt * _K_B_CGS * t_mid[None, :] * n_ion[:, None] * (qc[:, 1:] - qc[:, :-1])
-        dt = dt + d_lat / l_mid
+    d_release = np.diff(e_lat, axis=1) + np.diff(e_sep, axis=1)    # erg released per interval (>= 0)
+
+    # sequential in T_c because of the 22Ne reservoir; vectorised over masses. The settling heat is
+    # the uniform-trace rate times the fraction of the full-settling energy not yet released; where
+    # it would exceed the losses the core stalls at constant T_c while the reservoir drains.
+    dt = np.empty((n_m, n_tc - 1))
+    l_ne_used = np.zeros((n_m, n_tc))
+    released = np.zeros(n_m)
+    has_cap = e_cap > 0
+    safe_cap = np.where(has_cap, e_cap, 1.0)
+    limit = 1.0 - NET_LOSS_FLOOR
+    stall_nodes = 0
+    for k in range(n_tc - 1):
+        phi = np.where(has_cap, np.clip(1.0 - released / safe_cap, 0.0, 1.0), 0.0)
+        stall = phi * l_ne[:, k] > limit * l_out[:, k]
+        t_stall = np.zeros(n_m)
+        if np.any(stall):
+            stall_nodes += int(np.sum(stall))
+            drain = np.where(stall, safe_cap * (phi - limit * l_out[:, k] / np.where(stall, l_ne[:, k], 1.0)), 0.0)
+            t_stall = drain / (l_out[:, k] * (1.0 + limit)) * 2.0     # heating falls from L_out to limit*L_out
+            released = released + drain
+            phi = np.where(has_cap, np.clip(1.0 - released / safe_cap, 0.0, 1.0), 0.0)
+        h0, h1 = phi * l_ne[:, k], phi * l_ne[:, k + 1]
+        net0 = np.maximum(l_out[:, k] - h0, NET_LOSS_FLOOR * l_out[:, k])
+        net1 = np.maximum(l_out[:, k + 1] - h1, NET_LOSS_FLOOR * l_out[:, k + 1])
+        f0 = dU_dT[:, k] * tc[k] / net0
+        f1 = dU_dT[:, k + 1] * tc[k + 1] / net1
+        step = _segment_integral(f0, f1, dx) + d_release[:, k] / np.sqrt(net0 * net1)
+        dt[:, k] = step + t_stall
+        l_ne_used[:, k + 1] = h1
+        released = np.minimum(released + 0.5 * (h0 + h1) * step, e_cap)
+    f = dU_dT * tc[None, :] / np.maximum(l_out - l_ne_used, NET_LOSS_FLOOR * l_out)
     # ages from T = infinity: the integrand above the start continued as a power law
     slope = np.log(f[:, 1] / f[:, 0]) / dx                          # d ln f / d ln(1/T) > 0
     t0 = np.where(slope > 0, f[:, 0] / np.where(slope > 0, slope, 1.0), 0.0)
@@ -305,8 +444,16 @@ def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profile
 
     with np.errstate(divide="ignore"):
         log_lum_nu = np.log10(l_nu / _L_SUN_ERG_S)
-    settings = {"envelope": env.as_model(), "core": comp.key, "switches": sw.as_dict(),
-                "log_tc_start": log_tc_start, "dlog_tc": dlog_tc, "n_shell": n_shell}
+        log_lum_ne = np.log10(l_ne_used / _L_SUN_ERG_S)
+    env_model = env.as_model() if hasattr(env, "as_model") else {"name": type(env).__name__}
+    settings = {"envelope": env_model, "core": comp.key, "switches": sw.as_dict(),
+                "oxygen_profile": DEFAULT_OXYGEN_PROFILE.as_dict() if sw.stratified_core else None,
+                "melting_gamma_free_energies": ocp.melting_gamma(),
+                "log_tc_start": log_tc_start, "dlog_tc": dlog_tc, "n_shell": n_shell,
+                "ne22_stall_nodes": stall_nodes, "ne22_energy_released_erg": released.tolist(),
+                "ne22_energy_cap_erg": e_cap.tolist(),
+                "references": [dict(r) for r in INGREDIENT_REFERENCES], "cautions": list(CAUTIONS)}
     return Tracks(mass_msun=masses, radius_rsun=radius, log_tc=log_tc,
                   log_lum=np.log10(l_photon / _L_SUN_ERG_S), log_lum_nu=log_lum_nu,
-                  age_yr=age_s / YR_S, crystallized_fraction=qc, settings=settings)
+                  age_yr=age_s / YR_S, crystallized_fraction=qc, settings=settings,
+                  log_lum_ne22=log_lum_ne, separation_energy_erg=e_sep, latent_energy_erg=e_lat)

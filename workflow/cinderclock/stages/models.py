@@ -94,8 +94,47 @@ def load_photometry(table):
     return PhotometryGrid.from_frame(table)
 
 
+# ---------------------------------------------------------------- envelope
+HYDROGEN_LAYERS = {"thick": 1e-4, "thin": 1e-10}
+
+
+def envelope_choice(env_cfg):
+    """Keyword arguments of :func:`cinderclock.envelope.build_envelope_table` from the ``envelope`` section."""
+    layer = env_cfg["hydrogen_layer"]
+    q_h = HYDROGEN_LAYERS[layer] if isinstance(layer, str) else float(layer)
+    if env_cfg["atmosphere"] == "He":
+        q_h = 0.0
+    m = env_cfg["masses_msun"]
+    masses = np.round(np.arange(m["min"], m["max"] + 0.5 * m["step"], m["step"]), 6)
+    return {"masses": masses, "atmosphere": env_cfg["atmosphere"], "q_h": q_h,
+            "q_he": float(env_cfg["helium_layer_mass_fraction"]), "mlt_alpha": float(env_cfg["mixing_length_alpha"])}
+
+
+def build_envelope_table(settings):
+    """The integrated envelope on a (mass, Teff) grid for the configured layers and core.
+
+    Returns ``(table, specs, models)``; read it back with :func:`load_envelope`.
+    """
+    from ..envelope import build_envelope_table as build
+
+    env = build(core=settings["mass"]["core"], **envelope_choice(settings["envelope"]))
+    table, specs = env.to_frame()
+    return table, specs, [env.as_model()]
+
+
+def load_envelope(table_or_path):
+    """:class:`cinderclock.envelope.EnvelopeTable` from its table (a frame or a Parquet path)."""
+    from ..envelope import EnvelopeTable
+
+    if isinstance(table_or_path, (str, bytes)) or hasattr(table_or_path, "__fspath__"):
+        from ..tableio import read_table
+
+        table_or_path = read_table(table_or_path)
+    return EnvelopeTable.from_frame(table_or_path)
+
+
 # ---------------------------------------------------------------- mass-radius
-def build_mass_radius_table(settings):
+def build_mass_radius_table(settings, envelope_path=None, envelope=None):
     """Mass-radius table on a (mass, Teff) grid, long format.
 
     ``relation: structure`` integrates Chandrasekhar's equation for the configured core (with the
@@ -109,9 +148,12 @@ def build_mass_radius_table(settings):
     if cfg["relation"] == "structure":
         from ..massradius.table import build_mass_radius_table as build
 
-        df = build(core=cfg["core"], hydrogen_layer=cfg["hydrogen_layer"], coulomb=cfg["coulomb"])
+        if envelope is None:
+            if envelope_path is None:
+                raise ConfigError("mass.relation: structure needs the envelope table (results/models/envelope.parquet)")
+            envelope = load_envelope(envelope_path)
+        df = build(core=cfg["core"], envelope=envelope, coulomb=cfg["coulomb"])
         models = list(df.attrs.get("models", []))
-        models.append({"name": "mass_radius_settings", "reference": "", **df.attrs.get("settings", {})})
     elif cfg["relation"] == "nauenberg1972":
         from ..massradius.nauenberg import NAUENBERG_1972, NauenbergInverse, logg_cgs
 
@@ -136,7 +178,12 @@ def load_mass_radius(table):
 
 
 # ---------------------------------------------------------------- cooling
-def _cooling_frame(cool, model, user_tracks_path=None):
+def uses_kramers(cool, model):
+    """True where ``model`` runs on the Kramers envelope law rather than the integrated envelope."""
+    return model == "mestel" or (model == "numerical" and cool["envelope_relation"] == "kramers")
+
+
+def _cooling_frame(cool, model, user_tracks_path=None, envelope=None):
     """One cooling table (long format) for ``model`` with the shared cooling settings."""
     if model == "user_tracks":
         from ..cooling.usertracks import read_user_tracks
@@ -146,17 +193,18 @@ def _cooling_frame(cool, model, user_tracks_path=None):
     from ..cooling.table import build_cooling_table as build
 
     cal = None
-    if cool["calibration"]["coefficient_yr"] is not None:
-        cal = calibration_for_coefficient(cool["calibration"]["coefficient_yr"], envelope=cool["envelope"])
+    kramers = uses_kramers(cool, model)
+    if kramers and cool["calibration"]["coefficient_yr"] is not None:
+        cal = calibration_for_coefficient(cool["calibration"]["coefficient_yr"], envelope=cool["kramers_envelope"])
+    if not kramers and envelope is None:
+        raise ConfigError("the numerical cooling model needs the envelope table (results/models/envelope.parquet)")
     m = cool["masses_msun"]
     masses = np.round(np.arange(m["min"], m["max"] + 0.5 * m["step"], m["step"]), 6)
-    phys = cool["physics"]
-    return build(model=model, masses=masses, envelope=cool["envelope"], core=cool["core"],
-                 neutrinos=phys["neutrinos"], crystallization=phys["crystallization"],
-                 latent_heat=phys["latent_heat"], electrons=phys["electrons"], calibration=cal)
+    return build(model=model, masses=masses, envelope=cool["kramers_envelope"] if kramers else envelope,
+                 core=cool["core"], physics=dict(cool["physics"]), calibration=cal)
 
 
-def build_cooling_table(settings, which="primary", user_tracks_path=None):
+def build_cooling_table(settings, which="primary", user_tracks_path=None, envelope_path=None, envelope=None):
     """Cooling table of the configured model (``which="primary"``) or of the comparison model.
 
     Returns ``(table, specs, models)`` with the long format of
@@ -168,9 +216,11 @@ def build_cooling_table(settings, which="primary", user_tracks_path=None):
     model = cool["model"] if which == "primary" else cool["compare_with"]
     if model is None:
         raise ConfigError("cooling.compare_with is not set")
-    df = _cooling_frame(cool, model, user_tracks_path)
+    if envelope is None and envelope_path is not None and not uses_kramers(cool, model):
+        envelope = load_envelope(envelope_path)
+    df = _cooling_frame(cool, model, user_tracks_path, envelope)
     info = dict(df.attrs.get("cooling_model", {}))
-    if cool["calibration"]["coefficient_yr"] is not None and model != "user_tracks":
+    if cool["calibration"]["coefficient_yr"] is not None and uses_kramers(cool, model):
         info["calibration"] = {"coefficient_yr": cool["calibration"]["coefficient_yr"],
                                "source": cool["calibration"]["source"]}
     info.setdefault("name", f"cooling_{model}")
