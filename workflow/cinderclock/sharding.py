@@ -92,10 +92,8 @@ def harmonise_ids(frames, as_int):
     for f in frames:
         if as_int and f[ID].dtype.kind not in "iu":
             f[ID] = text_ids_to_int(f[ID])
-        elif not as_int and f[ID].dtype.kind in "iu":
-            f[ID] = f[ID].astype(str).astype(object)
         elif not as_int:
-            f[ID] = f[ID].astype(str).astype(object)
+            f[ID] = f[ID].astype(str)
     return frames
 
 
