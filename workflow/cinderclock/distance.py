@@ -249,7 +249,8 @@ def edsd_percentiles_kpc(parallax_mas, parallax_error_mas, length_scale_kpc, qua
 #: Its validity ranges are those the paper states for the fits: 6 < G < 21, 1.1 < nu_eff < 1.9
 #: (five-parameter solutions) and 1.24 < pseudocolour < 1.72 (six-parameter solutions), in
 #: micron^-1. Outside them the correction is evaluated at the nearest edge (the coefficients are not
-#: extrapolated in G, the colour functions are constant beyond their knots) and the star is flagged.
+#: extrapolated in G, and the colour is clipped to the fitted range: our choice, where the reference
+#: implementation extrapolates the linear colour terms) and the star is flagged.
 ZERO_POINT_LINDEGREN_2021 = PublishedRelation(
     key="lindegren2021",
     reference="Lindegren, L. et al. 2021, A&A 649, A4 (Gaia EDR3 parallax bias versus magnitude, colour and "
@@ -280,7 +281,8 @@ def lindegren2021_zero_point_mas(g_mag, nu_eff, pseudocolour, ecl_lat_deg, param
     c_2 = min(0.24, max(0, 1.48 - x))^3, c_3 = min(0, x - 1.24), c_4 = max(0, x - 1.72) of the colour
     x (nu_eff for five-parameter, pseudocolour for six-parameter solutions), b_0 = 1,
     b_1 = sin(beta), b_2 = sin^2(beta) - 1/3 of the ecliptic latitude beta, and q_jk interpolated
-    linearly in G between the tabulated nodes (held constant beyond 6 and 21 mag).
+    linearly in G between the tabulated nodes (held constant beyond 6 and 21 mag); a colour outside
+    the fitted range is clipped to it.
 
     Parameters
     ----------
@@ -317,7 +319,7 @@ def lindegren2021_zero_point_mas(g_mag, nu_eff, pseudocolour, ecl_lat_deg, param
         if not sel.any():
             continue
         nodes, q = _l21_table()[kind]
-        x, gs = colour[sel], g[sel]
+        x, gs = np.clip(colour[sel], lo, hi), g[sel]      # outside the fitted range: held at its edge
         c = np.stack([np.ones_like(x), np.clip(x - 1.48, -0.24, 0.24), np.clip(1.48 - x, 0.0, 0.24) ** 3,
                       np.minimum(0.0, x - 1.24), np.maximum(0.0, x - 1.72)])     # (5, m)
         i = np.clip(np.searchsorted(nodes, gs, side="right") - 1, 0, len(nodes) - 2)
@@ -327,7 +329,7 @@ def lindegren2021_zero_point_mas(g_mag, nu_eff, pseudocolour, ecl_lat_deg, param
         for col, (j, k) in enumerate(jk):
             total += qg[:, col] * c[j] * b[k][sel]
         zp[sel] = total * 1e-3
-        outside[sel] = (gs <= 6.0) | (gs >= 21.0) | (x <= lo) | (x >= hi)
+        outside[sel] = (gs <= 6.0) | (gs >= 21.0) | (colour[sel] <= lo) | (colour[sel] >= hi)
     return zp, outside
 
 
