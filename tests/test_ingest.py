@@ -75,8 +75,19 @@ def test_units_from_file_metadata_are_converted(tmp_path, config):
     t["plx_e"].unit = u.arcsec
     t.write(tmp_path / "cat.fits")
     config["catalogue"]["path"] = str(tmp_path / "cat.fits")
+    config["catalogue"]["units"] = {}                # the file's own units apply
     table, _, _ = load_and_ingest(stage_settings(config, "ingest"))
     assert np.allclose(table["plx_mas"], 10.0) and np.allclose(table["plx_err_mas"], 0.1)
+    # a catalogue.units entry that contradicts the file's declared unit is an error naming both
+    config["catalogue"]["units"] = {"parallax": "mas"}
+    with pytest.raises(InputError) as err:
+        load_and_ingest(stage_settings(config, "ingest"))
+    text = str(err.value)
+    assert "'mas'" in text and "'arcsec'" in text and "column 'plx'" in text and "\n" not in text
+    # an entry that agrees with the file (same unit, other spelling) is fine
+    config["catalogue"]["units"] = {"parallax": "arcsec", "parallax_error": "arcsecond"}
+    table, _, _ = load_and_ingest(stage_settings(config, "ingest"))
+    assert np.allclose(table["plx_mas"], 10.0)
 
 
 @pytest.mark.parametrize("text,message", [

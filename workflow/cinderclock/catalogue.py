@@ -1,4 +1,4 @@
-"""Reading survey catalogues: CSV, Parquet, FITS and VOTable, with the units they carry.
+"""Reading survey catalogues: CSV, ECSV, Parquet, FITS and VOTable, whole or split into parts.
 
 Readers return the raw columns the configuration asks for, under the user's own names, plus the
 unit each file declares for them (FITS TUNIT, VOTable unit attributes, astropy-written Parquet
@@ -8,6 +8,7 @@ naming the file and, where it applies, the row and column.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -16,29 +17,54 @@ import pandas as pd
 
 from .errors import InputError
 
-FORMATS = ("csv", "parquet", "fits", "votable")
+FORMATS = ("csv", "ecsv", "parquet", "fits", "votable")
 _SUFFIXES = {
-    ".csv": "csv", ".txt": "csv", ".tsv": "csv", ".gz": None,
+    ".csv": "csv", ".txt": "csv", ".tsv": "csv", ".gz": None, ".ecsv": "ecsv",
     ".parquet": "parquet", ".pq": "parquet",
     ".fits": "fits", ".fit": "fits", ".fts": "fits",
     ".vot": "votable", ".xml": "votable", ".votable": "votable",
 }
+#: File names taken from a directory: the data suffixes above, not .txt (archive folders hold
+#: checksum and read-me text files) and not hidden or underscore-prefixed files.
+_FOLDER_SUFFIXES = (".csv", ".csv.gz", ".tsv", ".tsv.gz", ".ecsv", ".ecsv.gz", ".parquet", ".pq", ".fits",
+                    ".fit", ".fts", ".vot", ".xml", ".votable")
+
+
+class PartsError(InputError):
+    """Faults in several parts of a split release: one line per part, each naming its file."""
+
+    def __init__(self, errors):
+        self.errors = list(errors)
+        super().__init__(self.errors[0].detail, self.errors[0].path, self.errors[0].row, self.errors[0].column)
+
+    def __str__(self):
+        if len(self.errors) == 1:
+            return str(self.errors[0])
+        return f"{len(self.errors)} catalogue parts are unreadable:\n" + "\n".join(str(e) for e in self.errors)
 
 
 @dataclass
 class RawCatalogue:
-    """Columns read from a catalogue file.
+    """Columns read from one batch of a catalogue file.
 
     Attributes
     ----------
+    path : str
+        The file (the part of a split release) the batch comes from.
     data : pandas.DataFrame
         The requested columns under the user's names, one row per readable input row.
     rows : numpy.ndarray of int64
-        Position of each row of ``data`` in the file (0-based, header excluded).
+        Position of each row over the whole catalogue (all parts in order, 0-based, headers excluded).
     units : dict of str to str
         Unit declared by the file for a column, where it declares one.
     malformed : list of (int, str)
-        Rows that could not be parsed at all (position, raw text): CSV rows with a wrong field count.
+        Rows that could not be parsed at all (position over the whole catalogue, raw text).
+    file_rows : numpy.ndarray of int64, optional
+        Position of each row within its file (defaults to ``rows``).
+    types : dict of str to str
+        numpy kind (``i``, ``f``, ``U``, ...) the file declares for a column (none for CSV).
+    first_row : int
+        Position over the whole catalogue of the file's first row.
     """
 
     path: str
@@ -46,189 +72,157 @@ class RawCatalogue:
     rows: np.ndarray
     units: dict = field(default_factory=dict)
     malformed: list = field(default_factory=list)
+    file_rows: np.ndarray = None
+    types: dict = field(default_factory=dict)
+    first_row: int = 0
+    row_paths: np.ndarray = None
+
+    def __post_init__(self):
+        if self.file_rows is None:
+            self.file_rows = np.asarray(self.rows, dtype=np.int64) - self.first_row
+
+    def where(self, i):
+        """(file, row within the file) of data row ``i``, for messages."""
+        return (str(self.row_paths[i]) if self.row_paths is not None else self.path), int(self.file_rows[i])
 
 
-def detect_format(path, fmt="auto"):
-    """Format name from the configuration or, for ``auto``, from the file name."""
-    if fmt != "auto":
-        return fmt
+def _natural_key(path):
+    return [int(t) if t.isdigit() else t for t in re.split(r"(\d+)", str(path))]
+
+
+def resolve_parts(spec):
+    """The files of a catalogue: one file, a directory, a glob pattern, or a list of these.
+
+    Returns
+    -------
+    list of str
+        Files in reading order: a list keeps its order; the files of a directory or a glob are
+        sorted by name with numbers compared as numbers (``part_2`` before ``part_10``).
+    """
+    import glob
+
+    items = list(spec) if isinstance(spec, (list, tuple)) else [spec]
+    if not items:
+        raise InputError("catalogue.path is an empty list")
+    parts = []
+    for item in items:
+        item = str(item)
+        p = Path(item)
+        if p.is_dir():
+            found = sorted((str(f) for f in p.iterdir() if f.is_file() and not f.name.startswith((".", "_"))
+                            and f.name.lower().endswith(_FOLDER_SUFFIXES)), key=_natural_key)
+            if not found:
+                raise InputError(f"the catalogue folder holds no catalogue files (looked for "
+                                 f"{', '.join(_FOLDER_SUFFIXES)})", item)
+        elif any(ch in item for ch in "*?["):
+            found = sorted((f for f in glob.glob(item) if Path(f).is_file()), key=_natural_key)
+            if not found:
+                raise InputError("no file matches the catalogue pattern", item)
+        else:
+            if not p.exists():
+                raise InputError("the catalogue file does not exist", item)
+            found = [item]
+        parts += [f for f in found if f not in parts]
+    return parts
+
+
+def sniff_format(path):
+    """Format of a file from its name; CSV files whose first line opens an ECSV header are ECSV."""
     suffixes = [s.lower() for s in Path(path).suffixes]
+    kind = None
     for s in reversed(suffixes):
         kind = _SUFFIXES.get(s)
         if kind:
-            return kind
+            break
+    if kind == "csv":
+        from .catalogue_readers import ecsv_header
+
+        try:
+            if ecsv_header(path) is not None:
+                return "ecsv"
+        except InputError:
+            return "csv"
+    return kind
+
+
+def detect_format(path, fmt="auto"):
+    """Format name from the configuration or, for ``auto``, from the file name (and ECSV header)."""
+    if fmt != "auto":
+        if fmt == "csv" and Path(path).exists() and Path(path).is_file():
+            return sniff_format(path) if sniff_format(path) == "ecsv" else "csv"
+        return fmt
+    kind = sniff_format(path)
+    if kind:
+        return kind
     raise InputError(f"cannot tell the file format from the name; set catalogue.format to one of {', '.join(FORMATS)}",
                      path)
 
 
-def _check_columns(path, available, wanted):
-    missing = [c for c in wanted if c not in available]
-    if missing:
-        shown = ", ".join(list(available)[:20])
-        raise InputError(f"column(s) {', '.join(repr(m) for m in missing)} named in the configuration are not in the "
-                         f"file; it has: {shown}{' ...' if len(available) > 20 else ''}", path)
-
-
-def _read_astropy(path, wanted, fmt):
-    import warnings
-
-    from astropy.table import Table
-
-    kind = {"fits": "fits", "votable": "votable", "parquet": "parquet"}[fmt]
-    try:
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore")
-            table = Table.read(path, format=kind)
-    except Exception as exc:
-        hint, size = "", Path(path).stat().st_size
-        if fmt == "fits" and size % 2880:           # FITS files are whole 2880-byte blocks
-            hint = f"; its size ({size} bytes) is not a multiple of 2880, so it is probably truncated"
-        raise InputError(f"not a readable {fmt.upper() if fmt != 'votable' else 'VOTable'} file "
-                         f"({exc.__class__.__name__}: {str(exc).splitlines()[0] if str(exc) else ''}){hint}",
-                         path) from None
-    _check_columns(path, table.colnames, wanted)
-    units = {c: str(table[c].unit) for c in wanted if getattr(table[c], "unit", None) is not None}
-    cols = {}
-    for c in wanted:
-        col = table[c]
-        if getattr(col, "mask", None) is not None and np.any(col.mask):
-            if col.dtype.kind in "fiu":
-                values = np.asarray(col.filled(np.nan) if col.dtype.kind == "f" else col.astype(float).filled(np.nan))
-            else:
-                values = np.asarray(col.astype(str).filled(""), dtype=object)
-        else:
-            values = np.asarray(col)
-        if values.dtype.kind in "SU":
-            values = values.astype(str).astype(object)
-        if values.dtype.byteorder not in ("=", "|"):
-            values = values.astype(values.dtype.newbyteorder("="))
-        cols[c] = values
-    data = pd.DataFrame(cols)
-    return data, np.arange(len(data), dtype=np.int64), units, []
-
-
-def _csv_batches(path, wanted, batch_rows):
-    """CSV in record batches, with global row positions and the malformed rows of each batch."""
-    import pyarrow as pa
-    import pyarrow.csv as pcsv
-
-    malformed = []
-
-    def on_invalid(row):
-        malformed.append((int(row.number) - 2 if row.number is not None else -1, row.text))
-        return "skip"
-
-    delimiter = "\t" if str(path).lower().endswith((".tsv", ".tsv.gz")) else ","
-    try:
-        header = pcsv.open_csv(path, parse_options=pcsv.ParseOptions(delimiter=delimiter,
-                                                                     invalid_row_handler=lambda row: "skip"),
-                               read_options=pcsv.ReadOptions(use_threads=False, block_size=1 << 16)).schema.names
-    except (pa.ArrowInvalid, StopIteration) as exc:
-        if "Empty CSV file" in str(exc) or isinstance(exc, StopIteration):
-            raise InputError("the catalogue is empty (no header line)", path) from None
-        raise InputError(f"cannot read the CSV header ({exc})", path) from None
-    _check_columns(path, header, wanted)
-    # block size chosen so that a block holds roughly batch_rows rows of ~200 bytes
-    reader = pcsv.open_csv(
-        path,
-        read_options=pcsv.ReadOptions(use_threads=False, block_size=max(1 << 16, min(1 << 28, 200 * batch_rows))),
-        parse_options=pcsv.ParseOptions(delimiter=delimiter, invalid_row_handler=on_invalid),
-        convert_options=pcsv.ConvertOptions(include_columns=list(wanted), column_types={c: pa.string() for c in wanted},
-                                            strings_can_be_null=True),
-    )
-    # The parser runs ahead of the batches handed out, so malformed rows may be reported before the
-    # batch they belong to: good rows are numbered by skipping every malformed position known so far.
-    start = 0
-    bad_rows = np.zeros(0, dtype=np.int64)
-    while True:
-        try:
-            batch = reader.read_next_batch()
-        except StopIteration:
-            break
-        except pa.ArrowInvalid as exc:
-            raise InputError(f"cannot parse the CSV file ({exc})", path) from None
-        new_bad, malformed[:] = list(malformed), []
-        bad_rows = np.union1d(bad_rows, np.asarray([r for r, _ in new_bad], dtype=np.int64))
-        k = batch.num_rows
-        span = np.arange(start, start + k + int(np.sum(bad_rows >= start)), dtype=np.int64)
-        rows = span[~np.isin(span, bad_rows)][:k]
-        start = int(rows[-1]) + 1 if k else start
-        yield batch.to_pandas(), rows, {}, new_bad
-    if malformed:                       # reported after the last batch
-        yield pd.DataFrame({c: pd.Series([], dtype=object) for c in wanted}), np.zeros(0, np.int64), {}, list(malformed)
-
-
-def _parquet_batches(path, wanted, batch_rows):
-    import pyarrow.parquet as pq
-
-    try:
-        pf = pq.ParquetFile(path)
-        schema = pf.schema_arrow
-    except Exception as exc:
-        raise InputError(f"not a readable Parquet file ({exc.__class__.__name__}: {exc})", path) from None
-    _check_columns(path, schema.names, wanted)
-    if schema.metadata and b"table_meta_yaml" in schema.metadata:   # written by astropy: keep its units
-        yield _read_astropy(path, wanted, "parquet")
-        return
-    units = {}
-    for f in schema:
-        unit = (f.metadata or {}).get(b"unit")
-        if unit and f.name in wanted:
-            units[f.name] = unit.decode()
-    start = 0
-    try:
-        for batch in pf.iter_batches(batch_size=batch_rows, columns=list(wanted)):
-            df = batch.to_pandas()
-            yield df, np.arange(start, start + len(df), dtype=np.int64), units, []
-            start += len(df)
-    except Exception as exc:
-        raise InputError(f"not a readable Parquet file ({exc.__class__.__name__}: {exc})", path) from None
+def part_formats(parts, fmt="auto"):
+    """Format of every part; a release must be of one format (CSV and ECSV parts may mix)."""
+    kinds = [detect_format(p, fmt) for p in parts]
+    family = {"ecsv": "csv"}
+    first = family.get(kinds[0], kinds[0])
+    for p, k in zip(parts, kinds):
+        if family.get(k, k) != first:
+            raise InputError(f"the parts of a catalogue must share one format: {Path(parts[0]).name} is {kinds[0]}, "
+                             f"this part is {k}", p)
+    return kinds
 
 
 def iter_catalogue(path, wanted, fmt="auto", batch_rows=262144):
     """Read the catalogue in batches of about ``batch_rows`` rows (memory stays bounded).
 
-    CSV and Parquet are streamed (pyarrow); FITS and VOTable are read whole by astropy (FITS
-    memory-mapped) and then cut into batches.
+    ``path`` is a file, a directory, a glob pattern or a list (see :func:`resolve_parts`); the parts
+    are read in order as one dataset, row positions running on from one part to the next. CSV,
+    ECSV and Parquet are streamed (pyarrow); FITS and VOTable parts are read whole by astropy
+    (FITS memory-mapped) and then cut into batches. A part that cannot be read does not stop the
+    reading of the others: at the end one :class:`PartsError` lists every bad part, one line each.
 
     Yields
     ------
     RawCatalogue
-        One per batch, with row positions counted over the whole file.
+        One per batch.
     """
-    path = str(path)
-    if not Path(path).exists():
-        raise InputError("the catalogue file does not exist", path)
-    if Path(path).stat().st_size == 0:
-        raise InputError("the catalogue is empty (zero bytes)", path)
-    kind = detect_format(path, fmt)
+    from .catalogue_readers import file_batches
+
+    parts = resolve_parts(path)
+    kinds = part_formats(parts, fmt)
     wanted = list(dict.fromkeys(wanted))
-    if kind == "csv":
-        batches = _csv_batches(path, wanted, batch_rows)
-    elif kind == "parquet":
-        batches = _parquet_batches(path, wanted, batch_rows)
-    elif kind in ("fits", "votable"):
-        data, rows, units, _ = _read_astropy(path, wanted, kind)
-        batches = ((data.iloc[s:s + batch_rows].reset_index(drop=True), rows[s:s + batch_rows], units, [])
-                   for s in range(0, max(len(data), 1), batch_rows))
-    else:
-        raise InputError(f"unknown catalogue format '{kind}'; use one of {', '.join(FORMATS)}", path)
-    total = 0
-    for data, rows, units, malformed in batches:
-        total += len(data) + len(malformed)
-        if len(data) or malformed:
-            yield RawCatalogue(path=path, data=data, rows=rows, units=units, malformed=malformed)
+    total, errors, first_units = 0, [], {}
+    for part, kind in zip(parts, kinds):
+        start, n_part = total, 0
+        try:
+            if Path(part).stat().st_size == 0:
+                raise InputError("the catalogue is empty (zero bytes)", part)
+            for data, rows, units, malformed, types in file_batches(part, kind, wanted, batch_rows):
+                n_part += len(data) + len(malformed)
+                for col, unit in units.items():
+                    if first_units.setdefault(col, (unit, part))[0] != unit:
+                        raise InputError(f"column '{col}' is in {unit!r} here but in {first_units[col][0]!r} in "
+                                         f"{Path(first_units[col][1]).name}", part, column=col)
+                if errors or not (len(data) or malformed):
+                    continue                    # after a bad part only look for further faults
+                yield RawCatalogue(path=part, data=data, rows=rows + start, units=units,
+                                   malformed=[(r + start, t) for r, t in malformed], file_rows=rows, types=types,
+                                   first_row=start)
+        except InputError as exc:
+            errors.append(exc)
+        total = start + n_part
+    if errors:
+        raise PartsError(errors)
     if total == 0:
-        raise InputError("the catalogue has a header but no data rows", path)
+        raise InputError("the catalogue has a header but no data rows", parts[0] if len(parts) == 1 else path)
 
 
 def read_catalogue(path, wanted, fmt="auto"):
-    """Read the columns ``wanted`` (user names) from a catalogue file, whole.
+    """Read the columns ``wanted`` (user names) from a catalogue, whole.
 
     Parameters
     ----------
-    path : str or Path
-        CSV (comma- or tab-separated, optionally gzipped), Parquet, FITS (first table HDU) or VOTable.
+    path : str, Path or list
+        A file, a directory, a glob pattern or a list of files (see :func:`resolve_parts`) of CSV
+        (comma- or tab-separated, optionally gzipped), ECSV, Parquet, FITS (first table HDU) or VOTable.
     wanted : list of str
         Column names as they appear in the file.
     fmt : str
@@ -239,7 +233,14 @@ def read_catalogue(path, wanted, fmt="auto"):
     RawCatalogue
         See :func:`iter_catalogue` for the batched form the workflow uses.
     """
-    parts = list(iter_catalogue(path, wanted, fmt, batch_rows=1 << 22))
-    data = pd.concat([p.data for p in parts], ignore_index=True) if len(parts) > 1 else parts[0].data
-    return RawCatalogue(path=str(path), data=data, rows=np.concatenate([p.rows for p in parts]),
-                        units=parts[0].units, malformed=[m for p in parts for m in p.malformed])
+    batches = list(iter_catalogue(path, wanted, fmt, batch_rows=1 << 22))
+    if len(batches) == 1:
+        return batches[0]
+    data = pd.concat([b.data for b in batches], ignore_index=True)
+    paths = np.concatenate([np.full(len(b.data), b.path, dtype=object) for b in batches])
+    single = len({b.path for b in batches}) == 1
+    return RawCatalogue(path=batches[0].path if single else str(path), data=data,
+                        rows=np.concatenate([b.rows for b in batches]), units=batches[0].units,
+                        malformed=[m for b in batches for m in b.malformed],
+                        file_rows=np.concatenate([b.file_rows for b in batches]), types=batches[0].types,
+                        row_paths=None if single else paths)

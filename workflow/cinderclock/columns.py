@@ -71,6 +71,16 @@ INPUT_QUANTITIES = {
                          low=0.0, high=10.0),
     "ebv_error": InputQuantity("ebv_err_mag", "mag", "Uncertainty of E(B-V)", "stat.error;phot.color.excess",
                                low=0.0, high=10.0),
+    # inputs of the per-star parallax zero point (astrometry.zero_point_model)
+    "nu_eff": InputQuantity("nu_eff_um", "1 / um", "Effective wavenumber used in the astrometric solution "
+                            "(five-parameter solutions)", "em.wavenumber"),
+    "pseudocolour": InputQuantity("pseudocolour_um", "1 / um", "Astrometrically estimated effective wavenumber "
+                                  "(six-parameter solutions)", "em.wavenumber"),
+    "ecl_lat": InputQuantity("ecl_lat_deg", "deg", "Ecliptic latitude", "pos.ecliptic.lat", low=-90.0, high=90.0),
+    "astrometric_params_solved": InputQuantity("astrometric_params_solved", "", "Astrometric solution type "
+                                               "(31: five parameters, 95: six parameters)", "meta.code"),
+    "parallax_zero_point": InputQuantity("plx_zp_cat_mas", "mas", "Parallax zero point given by the catalogue for "
+                                         "the star", "pos.parallax.zeroPoint"),
 }
 
 ID = "star_id"

@@ -74,6 +74,10 @@ def validate(config, schema=None):
     errors = sorted(filling(schema).iter_errors(config), key=lambda e: (len(list(e.absolute_path)), str(e.message)))
     if errors:
         raise ConfigError(_format_error(errors[0]))
+    if isinstance(config.get("bands"), dict):
+        from .photometry.systems import expand_bands
+
+        expand_bands(config["bands"])
     return config
 
 
@@ -150,9 +154,12 @@ def check_references(config):
     for key, band in bands.items():
         name = band["passband"]
         if known is not None and name not in known:
-            close = [k for k in known if k.split("-")[0] == name.split("-")[0]] or known[:12]
-            raise ConfigError(f"config key 'bands.{key}.passband': unknown passband {name!r}; known passbands "
-                              f"include: {', '.join(close)}")
+            from .photometry.systems import closest
+
+            raise ConfigError(f"config key 'bands.{key}.passband': unknown passband {name!r}; closest known "
+                              f"passbands: {', '.join(closest(name, known))}")
+        if band.get("error_kind") == "flux" and not band.get("flux"):
+            raise ConfigError(f"config key 'bands.{key}.flux': error_kind flux needs the catalogue column of the flux")
         if band["system"] == "vega" and name not in vega:
             raise ConfigError(f"config key 'bands.{key}.system': no published Vega zero point for {name!r}; use "
                               f"'ab' or one of: {', '.join(vega)}")

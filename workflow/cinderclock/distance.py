@@ -248,3 +248,166 @@ def edsd_percentiles_kpc(parallax_mas, parallax_error_mas, length_scale_kpc, qua
             f = np.where(c1 > c0, (q - c0) / np.where(c1 > c0, c1 - c0, 1.0), 0.0)
             out[sl, k] = np.exp(xa + f * (xb - xa))
     return out
+
+
+#: The per-star Gaia EDR3/DR3 parallax zero point (coefficients in data/parallax_zero_point_l21.csv).
+#: Its validity ranges are those the paper states for the fits: 6 < G < 21, 1.1 < nu_eff < 1.9
+#: (five-parameter solutions) and 1.24 < pseudocolour < 1.72 (six-parameter solutions), in
+#: micron^-1. Outside them the correction is evaluated at the nearest edge (the coefficients are not
+#: extrapolated in G, and the colour is clipped to the fitted range: our choice, where the reference
+#: implementation extrapolates the linear colour terms) and the star is flagged.
+ZERO_POINT_LINDEGREN_2021 = PublishedRelation(
+    key="lindegren2021",
+    reference="Lindegren, L. et al. 2021, A&A 649, A4 (Gaia EDR3 parallax bias versus magnitude, colour and "
+              "position), Appendix A with Tables 9 (five-parameter) and 10 (six-parameter solutions)",
+    ranges=(ValidRange("phot_g_mean_mag", 6.0, 21.0, "mag"), ValidRange("nu_eff", 1.1, 1.9, "1/um"),
+            ValidRange("pseudocolour", 1.24, 1.72, "1/um")),
+    note="tentative recipe by its authors; calibrated on quasars, binaries and LMC stars, not on white dwarfs "
+         "(which are bluer than most calibrators: nu_eff often near or above 1.7)",
+)
+
+#: astrometric_params_solved of five- and six-parameter solutions (Gaia EDR3 data model).
+FIVE_PARAMETER, SIX_PARAMETER = 31, 95
+
+
+def _l21_table():
+    from importlib import resources
+
+    text = (resources.files("cinderclock") / "data" / "parallax_zero_point_l21.csv").read_text()
+    rows = np.array([[float(x) for x in line.split(",")] for line in text.splitlines()
+                     if line.strip() and not line.startswith("#")])
+    return {int(s): (rows[rows[:, 0] == s, 1], rows[rows[:, 0] == s, 2:]) for s in (5, 6)}
+
+
+def lindegren2021_zero_point_mas(g_mag, nu_eff, pseudocolour, ecl_lat_deg, params_solved):
+    """Per-star parallax zero point of Gaia EDR3/DR3, mas (Lindegren et al. 2021, A&A 649, A4).
+
+    Z = sum_jk q_jk(G) c_j b_k with (Appendix A) c_0 = 1, c_1 = max(-0.24, min(0.24, x - 1.48)),
+    c_2 = min(0.24, max(0, 1.48 - x))^3, c_3 = min(0, x - 1.24), c_4 = max(0, x - 1.72) of the colour
+    x (nu_eff for five-parameter, pseudocolour for six-parameter solutions), b_0 = 1,
+    b_1 = sin(beta), b_2 = sin^2(beta) - 1/3 of the ecliptic latitude beta, and q_jk interpolated
+    linearly in G between the tabulated nodes (held constant beyond 6 and 21 mag); a colour outside
+    the fitted range is clipped to it.
+
+    Parameters
+    ----------
+    g_mag : array_like
+        Gaia G magnitude (phot_g_mean_mag), mag.
+    nu_eff, pseudocolour : array_like
+        nu_eff_used_in_astrometry and pseudocolour, micron^-1 (NaN where not given).
+    ecl_lat_deg : array_like
+        Ecliptic latitude, degrees.
+    params_solved : array_like
+        astrometric_params_solved (31 or 95; anything else gives NaN).
+
+    Returns
+    -------
+    zero_point_mas : ndarray
+        The zero point (the corrected parallax is parallax - zero point); NaN where it cannot be
+        evaluated (other solution types, missing inputs).
+    outside : ndarray of bool
+        True where an input lies outside the validity range of the fits (value still evaluated,
+        at the edge).
+    """
+    g = np.atleast_1d(np.asarray(g_mag, dtype=float))
+    nu = np.broadcast_to(np.asarray(nu_eff, dtype=float), g.shape)
+    pc = np.broadcast_to(np.asarray(pseudocolour, dtype=float), g.shape)
+    sb = np.sin(np.deg2rad(np.broadcast_to(np.asarray(ecl_lat_deg, dtype=float), g.shape)))
+    sol = np.broadcast_to(np.asarray(params_solved, dtype=float), g.shape)
+    zp = np.full(g.shape, np.nan)
+    outside = np.zeros(g.shape, dtype=bool)
+    b = np.stack([np.ones_like(sb), sb, sb**2 - 1.0 / 3.0])                      # (3, n)
+    # (j, k) of the coefficient columns q00 q01 q02 q10 q11 q12 q20 q30 q40
+    jk = [(0, 0), (0, 1), (0, 2), (1, 0), (1, 1), (1, 2), (2, 0), (3, 0), (4, 0)]
+    for code, kind, colour, lo, hi in ((FIVE_PARAMETER, 5, nu, 1.1, 1.9), (SIX_PARAMETER, 6, pc, 1.24, 1.72)):
+        sel = (sol == code) & np.isfinite(g) & np.isfinite(colour) & np.isfinite(sb)
+        if not sel.any():
+            continue
+        nodes, q = _l21_table()[kind]
+        x, gs = np.clip(colour[sel], lo, hi), g[sel]      # outside the fitted range: held at its edge
+        c = np.stack([np.ones_like(x), np.clip(x - 1.48, -0.24, 0.24), np.clip(1.48 - x, 0.0, 0.24) ** 3,
+                      np.minimum(0.0, x - 1.24), np.maximum(0.0, x - 1.72)])     # (5, m)
+        i = np.clip(np.searchsorted(nodes, gs, side="right") - 1, 0, len(nodes) - 2)
+        h = np.clip((gs - nodes[i]) / (nodes[i + 1] - nodes[i]), 0.0, 1.0)
+        qg = (1.0 - h)[:, None] * q[i] + h[:, None] * q[i + 1]                    # (m, 9), micro-arcsec
+        total = np.zeros(gs.shape)
+        for col, (j, k) in enumerate(jk):
+            total += qg[:, col] * c[j] * b[k][sel]
+        zp[sel] = total * 1e-3
+        outside[sel] = (gs <= 6.0) | (gs >= 21.0) | (colour[sel] <= lo) | (colour[sel] >= hi)
+    return zp, outside
+
+
+def ecliptic_latitude_deg(ra_deg, dec_deg):
+    """Ecliptic latitude (barycentric mean ecliptic of J2000, astropy) of ICRS positions, degrees."""
+    from astropy import units as u
+    from astropy.coordinates import BarycentricMeanEcliptic, SkyCoord
+
+    ra = np.asarray(ra_deg, dtype=float)
+    dec = np.asarray(dec_deg, dtype=float)
+    out = np.full(ra.shape, np.nan)
+    ok = np.isfinite(ra) & np.isfinite(dec)
+    if ok.any():
+        c = SkyCoord(ra=ra[ok] * u.deg, dec=dec[ok] * u.deg, frame="icrs")
+        out[ok] = c.transform_to(BarycentricMeanEcliptic()).lat.deg
+    return out
+
+
+def star_zero_points(table, astrometry, bands=None):
+    """Parallax zero point of every star of a canonical table, as configured.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        Canonical columns (``plx_mas``, ``mag_<band>``, and the zero-point inputs read at ingest).
+    astrometry : dict
+        The ``astrometry`` section: ``zero_point_model`` (``constant``, ``lindegren2021`` or
+        ``column``), ``parallax_zero_point_mas`` (the constant, and the value where a star's own
+        zero point cannot be had) and ``zero_point_band`` (band key of Gaia G).
+    bands : dict, optional
+        The ``bands`` section (to check ``zero_point_band``).
+
+    Returns
+    -------
+    zero_point_mas : ndarray
+    outside : ndarray of bool
+        lindegren2021: the star lies outside the fits' validity range (value evaluated at the edge).
+    fallback : ndarray of bool
+        The star's own zero point could not be had (missing inputs or column value): the constant
+        was used.
+    """
+    from .errors import ConfigError
+
+    n = len(table)
+    const = float(astrometry.get("parallax_zero_point_mas", 0.0))
+    model = astrometry.get("zero_point_model", "constant")
+    none = np.zeros(n, dtype=bool)
+    if model == "constant":
+        return np.full(n, const), none, none
+    if model == "column":
+        if "plx_zp_cat_mas" not in table:
+            raise ConfigError("astrometry.zero_point_model: column needs catalogue.columns.parallax_zero_point")
+        zp = table["plx_zp_cat_mas"].to_numpy(dtype=float)
+        outside = none
+    elif model == "lindegren2021":
+        band = astrometry.get("zero_point_band", "G")
+        if bands is not None and band not in bands:
+            raise ConfigError(f"astrometry.zero_point_band: band {band!r} is not configured; bands: {', '.join(bands)}")
+        need = [c for c in ("astrometric_params_solved",) if c not in table]
+        if "nu_eff_um" not in table and "pseudocolour_um" not in table:
+            need.append("nu_eff")
+        if "ecl_lat_deg" not in table and not ("ra_deg" in table and "dec_deg" in table):
+            need.append("ecl_lat (or ra and dec)")
+        if need:
+            raise ConfigError(f"astrometry.zero_point_model: lindegren2021 needs catalogue.columns {', '.join(need)}")
+        col = lambda name: table[name].to_numpy(dtype=float) if name in table else np.full(n, np.nan)  # noqa: E731
+        beta = col("ecl_lat_deg")
+        if "ra_deg" in table and "dec_deg" in table and np.isnan(beta).any():
+            missing = np.isnan(beta)
+            beta[missing] = ecliptic_latitude_deg(col("ra_deg")[missing], col("dec_deg")[missing])
+        zp, outside = lindegren2021_zero_point_mas(col(f"mag_{band}"), col("nu_eff_um"), col("pseudocolour_um"),
+                                                   beta, col("astrometric_params_solved"))
+    else:
+        raise ConfigError(f"astrometry.zero_point_model: unknown model {model!r}")
+    fallback = ~np.isfinite(zp)
+    return np.where(fallback, const, zp), outside & ~fallback, fallback

@@ -55,10 +55,15 @@ FLAG_BITS = {
     "mc_off_table": (14, "More than the configured fraction of Monte Carlo draws fell off the model tables"),
     "teff_at_grid_edge": (15, "Photometric Teff at an end of the model grid: a bound, not a fit"),
     "older_than_universe": (16, "Total age exceeds the age of the Universe (Planck 2018, via astropy)"),
+    "zero_point_out_of_range": (17, "Per-star parallax zero point: G or colour outside the validity range of the "
+                                    "correction (evaluated at the edge of the range)"),
+    "zero_point_fallback": (18, "Per-star parallax zero point not available (inputs missing): the configured "
+                                "constant was used"),
 }
 
 REJECT_COLUMNS = {
-    "star_id": Column("", "Source identifier as read from the input (text)", "meta.id"),
+    "star_id": Column("", "Source identifier, in the same type as in the results (-1 or empty where the row has "
+                          "none)", "meta.id"),
     "input_row": Column("", "Zero-based position of the row in the input catalogue (header excluded)", "meta.number"),
     "stage": Column("", "Stage that rejected the row", "meta.code"),
     "reason": Column("", "Reason code (listed in the table metadata)", "meta.code.error"),
@@ -87,7 +92,7 @@ def make_rejects(ids, rows, stage, reason, detail):
     Parameters
     ----------
     ids : array_like
-        Source identifiers (converted to text).
+        Source identifiers, in the catalogue's own type: integers stay int64, anything else is text.
     rows : array_like of int
         Input-row positions.
     stage, reason : str
@@ -97,7 +102,11 @@ def make_rejects(ids, rows, stage, reason, detail):
     """
     if reason not in REASONS:
         raise ValueError(f"unknown reason code {reason!r}")
-    ids = pd.Series(np.asarray(ids)).astype(str).to_numpy(dtype=object)
+    ids = np.asarray(ids)
+    if ids.dtype.kind in "iu":
+        ids = ids.astype(np.int64)
+    else:
+        ids = pd.Series(ids, dtype=object).astype(str).to_numpy(dtype=object)
     n = len(ids)
     detail = np.full(n, detail, dtype=object) if isinstance(detail, str) else np.asarray(detail, dtype=object)
     return pd.DataFrame({
@@ -110,8 +119,8 @@ def make_rejects(ids, rows, stage, reason, detail):
 
 
 def empty_rejects():
-    """A rejects table with no rows and the right columns."""
-    return make_rejects([], [], "ingest", "missing_id", "")
+    """A rejects table with no rows and the right columns (text identifiers)."""
+    return make_rejects(np.array([], dtype=object), [], "ingest", "missing_id", "")
 
 
 def concat_rejects(frames):

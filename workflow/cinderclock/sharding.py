@@ -39,15 +39,32 @@ def _stored_hash(path):
     return meta.get("provenance", {}).get("stages", {}).get("ingest", {}).get("content_sha256")
 
 
+def catalogue_label(spec):
+    """Short name of the configured catalogue (a file, folder, pattern or list of files) for provenance."""
+    if isinstance(spec, (list, tuple)):
+        names = [Path(str(p)).name for p in spec]
+        return names[0] if len(names) == 1 else f"{names[0]} ... {names[-1]} ({len(names)} files)"
+    return Path(str(spec)).name
+
+
+def ingest_provenance(settings):
+    """Provenance block of the ingest tables: settings, catalogue and the photometric conversions."""
+    from .stages.ingest_bands import conversions
+
+    prov = build("ingest", settings, inputs=(), models=())
+    prov["stages"]["ingest"]["catalogue"] = catalogue_label(settings["catalogue"]["path"])
+    prov["stages"]["ingest"]["photometry_conversions"] = conversions(settings["bands"])
+    return prov
+
+
 def write_if_changed(df, path, specs, settings, extra_meta=None):
     """Write ``df`` to ``path`` unless the file already holds the same content. Returns True if written."""
     digest = content_hash(df, specs)
     path = Path(path)
     if path.exists() and _stored_hash(path) == digest:
         return False
-    prov = build("ingest", settings, inputs=(), models=())
+    prov = ingest_provenance(settings)
     prov["stages"]["ingest"]["content_sha256"] = digest
-    prov["stages"]["ingest"]["catalogue"] = Path(settings["catalogue"]["path"]).name
     if extra_meta:
         prov.update(extra_meta)
     write_table(df, path, specs, prov, stage="ingest")
@@ -67,17 +84,20 @@ def _read_pieces(folder):
     return pieces
 
 
-def _harmonise_ids(frames):
-    """Integer identifiers stay integers unless some batch had text identifiers: then all are text."""
+def harmonise_ids(frames, as_int):
+    """Give every frame's ``star_id`` one type: int64 (-1 where a text is no integer) or text."""
     from .columns import ID
+    from .stages.ingest import text_ids_to_int
 
-    if any(f[ID].dtype.kind not in "iu" for f in frames if len(f)):
-        for f in frames:
+    for f in frames:
+        if as_int and f[ID].dtype.kind not in "iu":
+            f[ID] = text_ids_to_int(f[ID])
+        elif not as_int:
             f[ID] = f[ID].astype(str)
     return frames
 
 
-def ingest_to_shards(settings, shard_dir, rejects_path, batch_rows=262144):
+def ingest_to_shards(settings, shard_dir, rejects_path, batch_rows=262144, parts_out=None):
     """Ingest the configured catalogue batch by batch into shard files; return the manifest entries.
 
     Memory stays bounded by one batch plus the largest shard: each batch is vetted and its rows are
@@ -95,6 +115,8 @@ def ingest_to_shards(settings, shard_dir, rejects_path, batch_rows=262144):
         The ingest stage's rejects table.
     batch_rows : int
         Rows per read batch.
+    parts_out : list, optional
+        Receives one ``{"file", "first_row", "rows"}`` entry per catalogue part.
 
     Returns
     -------
@@ -112,12 +134,16 @@ def ingest_to_shards(settings, shard_dir, rejects_path, batch_rows=262144):
     shard_dir = Path(shard_dir)
     spill = shard_dir / ".spill"
     shutil.rmtree(spill, ignore_errors=True)
-    specs, rows_read = {}, 0
+    specs, rows_read, parts, id_kinds = {}, 0, {}, set()
     cat = settings["catalogue"]
     for b, raw in enumerate(iter_catalogue(cat["path"], wanted_columns(settings), cat.get("format", "auto"),
                                            batch_rows=batch_rows)):
         rows_read += len(raw.data) + len(raw.malformed)
+        entry = parts.setdefault(raw.path, {"file": raw.path, "first_row": int(raw.first_row), "rows": 0})
+        entry["rows"] += len(raw.data) + len(raw.malformed)
         table, rejects, sp = ingest(raw, settings, dedupe=False)
+        if len(raw.data):
+            id_kinds.add(bool(table.attrs.get("id_is_int", table[ID].dtype.kind in "iu")))
         specs.update(sp)
         labels, off_sky = shard_labels(table, settings)
         if off_sky.any():
@@ -128,37 +154,42 @@ def ingest_to_shards(settings, shard_dir, rejects_path, batch_rows=262144):
             _spill(table.loc[labels == name], spill / str(name), b)
         if len(rejects):
             _spill(rejects, spill / "_rejects", b)
+    # one identifier type for the whole catalogue: integers only if every batch had integer identifiers
+    as_int = id_kinds == {True}
 
-    # repeated identifiers over the whole catalogue: keep the first occurrence
+    # repeated identifiers over the whole catalogue (all parts): keep the first occurrence
     names = sorted(p.name for p in spill.glob("*") if p.is_dir() and p.name != "_rejects")
     import pyarrow.parquet as pq
 
     ids = [pq.read_table(p, columns=[ID, ROW]).to_pandas() for n in names for p in sorted((spill / n).glob("*.parquet"))]
     dup_rows = np.zeros(0, dtype=np.int64)
     if ids:
-        allids = pd.concat([f.astype({ID: str}) for f in ids], ignore_index=True).sort_values(ROW)
+        allids = pd.concat(harmonise_ids(ids, as_int), ignore_index=True).sort_values(ROW, kind="stable")
         dup_rows = allids.loc[allids[ID].duplicated(keep="first"), ROW].to_numpy()
 
     manifest, written, dup_frames = {}, 0, []
     for name in names:
-        part = pd.concat(_harmonise_ids(_read_pieces(spill / name)), ignore_index=True)
+        part = pd.concat(harmonise_ids(_read_pieces(spill / name), as_int), ignore_index=True)
         part = part.sort_values(ROW, kind="stable").reset_index(drop=True)
         is_dup = np.isin(part[ROW].to_numpy(), dup_rows)
         if is_dup.any():
             d = part.loc[is_dup]
+            where = [_locate(r, parts) for r in d[ROW]]
             dup_frames.append(make_rejects(d[ID], d[ROW], STAGE, "duplicate_id",
-                                           [f"identifier {v!r} appeared earlier" for v in d[ID].astype(str)]))
+                                           [f"identifier {v!r} appeared earlier (this row: {f}, row {r})"
+                                            for v, (f, r) in zip(d[ID].astype(str), where)]))
             part = part.loc[~is_dup].reset_index(drop=True)
         if len(part) == 0:
             continue
         written += write_if_changed(part, shard_dir / f"{name}.parquet", specs, settings)
         manifest[name] = {"rows": int(len(part)), "content_sha256": content_hash(part, specs)}
 
-    rejects = concat_rejects(_read_pieces(spill / "_rejects") + dup_frames) if (spill / "_rejects").exists() \
-        else concat_rejects(dup_frames)
-    rejects = rejects.sort_values("input_row", kind="stable").reset_index(drop=True)
-    prov = build("ingest", settings, inputs=(), models=())
-    prov["stages"]["ingest"]["catalogue"] = Path(cat["path"]).name
+    pieces = _read_pieces(spill / "_rejects") if (spill / "_rejects").exists() else []
+    rejects = concat_rejects(harmonise_ids(pieces + dup_frames, as_int))
+    rejects = harmonise_ids([rejects], as_int)[0].sort_values("input_row", kind="stable").reset_index(drop=True)
+    prov = ingest_provenance(settings)
+    prov["stages"]["ingest"]["parts"] = [{"file": Path(p["file"]).name, "first_row": p["first_row"], "rows": p["rows"]}
+                                         for p in parts.values()]
     write_table(rejects, rejects_path, REJECT_COLUMNS, dict(prov, **metadata_block()), stage="ingest")
 
     for stale in shard_dir.glob("*.parquet"):
@@ -168,4 +199,14 @@ def ingest_to_shards(settings, shard_dir, rejects_path, batch_rows=262144):
     shutil.rmtree(spill, ignore_errors=True)
     log.info("%d rows read; %d shard(s); %d rewritten, the others unchanged; %d rejected", rows_read,
              len(manifest), written, len(rejects))
+    if parts_out is not None:
+        parts_out.extend(parts.values())
     return manifest, rows_read
+
+
+def _locate(row, parts):
+    """(file name, row within the file) of a position over the whole catalogue."""
+    for p in parts.values():
+        if p["first_row"] <= row < p["first_row"] + p["rows"]:
+            return Path(p["file"]).name, int(row - p["first_row"])
+    return "?", int(row)

@@ -96,6 +96,10 @@ def _described_schema(arrow_schema, columns, provenance, stage):
     fields = []
     for field in arrow_schema:
         spec = columns[field.name]
+        if pa.types.is_null(field.type):
+            # an empty (or all-missing) text column: pandas cannot tell its type, so it stays text
+            # (typed columns stay typed in empty tables, and every export format can write it)
+            field = field.with_type(pa.string())
         fields.append(field.with_metadata({b"unit": spec.unit.encode(), b"description": spec.description.encode(),
                                            b"ucd": spec.ucd.encode()}))
     block = {"schema_version": SCHEMA_VERSION, "stage": stage,

@@ -1,5 +1,6 @@
 # Helpers shared by the rule files: results folder, per-stage settings, shard lists.
 import json
+import sys
 
 from cinderclock.config import stage_settings
 
@@ -34,3 +35,15 @@ def per_shard(*patterns):
         return [p.format(R=R, shard=s) for p in patterns for s in shard_names()]
 
     return files
+
+
+def catalogue_parts():
+    """The catalogue's files (one file, a folder, a pattern or a list); one line and stop if there are none."""
+    from cinderclock.catalogue import resolve_parts
+    from cinderclock.errors import CinderclockError
+
+    try:
+        return resolve_parts(config["catalogue"]["path"])
+    except CinderclockError as exc:
+        sys.stderr.write(f"cinderclock: {exc}\n")
+        raise SystemExit(1) from None

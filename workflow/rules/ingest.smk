@@ -1,10 +1,11 @@
 # Ingest: read the catalogue in batches, map and convert columns, vet rows, cut into shards.
 # Shards are rewritten only when their content changes, so later stages rerun only for them.
+# The catalogue may be one file or a split release (folder, pattern or list): every part is an input.
 
 
 checkpoint ingest:
     input:
-        catalogue=config["catalogue"]["path"],
+        catalogue=catalogue_parts(),
     output:
         manifest=f"{R}/ingest/manifest.json",
         rejects=f"{R}/ingest/rejects.parquet",

@@ -49,9 +49,10 @@ def load_passband(name):
     try:
         curve = speclite.filters.load_filter(name)
     except Exception:
-        known = available_passbands()
-        close = [k for k in known if k.split("-")[0] == name.split("-")[0]] or known[:12]
-        raise ConfigError(f"unknown passband '{name}'; known passbands include: {', '.join(close)}") from None
+        from .systems import closest
+
+        raise ConfigError(f"unknown passband '{name}'; closest known passbands: "
+                          f"{', '.join(closest(name, available_passbands()))}") from None
     lam = np.asarray(curve.wavelength, dtype=float) * ANGSTROM_M
     return Passband(name=name, wavelength_m=lam, response=np.asarray(curve.response, dtype=float))
 

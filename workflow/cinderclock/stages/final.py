@@ -28,6 +28,20 @@ def _provenance(blocks, extra):
             "stages": stages, **extra}
 
 
+def _ids_are_integers(table_paths, reject_paths):
+    """Whether the run's identifiers are integers: the type of the first non-empty table that has them."""
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+
+    from ..columns import ID
+
+    for p in list(table_paths) + list(reject_paths):
+        pf = pq.ParquetFile(p)
+        if pf.metadata.num_rows:
+            return pa.types.is_integer(pf.schema_arrow.field(ID).type)
+    return False
+
+
 def merge(table_paths, reject_paths, manifest_path, out_table, out_rejects, out_counts):
     """Merge shard tables and rejects; write the final tables and the counts (JSON)."""
     with open(manifest_path) as fh:
@@ -43,6 +57,9 @@ def merge(table_paths, reject_paths, manifest_path, out_table, out_rejects, out_
 
     specs = column_specs_from_json(specs)
     prov = _provenance([m.get("provenance", {}) for m in metas], extra) | metadata_block()
+    from ..sharding import harmonise_ids
+
+    ids_int = _ids_are_integers(table_paths, reject_paths)      # one star_id type in results and rejects
     n_final = 0
     if table_paths:
         with StreamingTableWriter(out_table, specs, prov, stage=STAGE) as w:
@@ -56,8 +73,9 @@ def merge(table_paths, reject_paths, manifest_path, out_table, out_rejects, out_
         from ..columns import BASE_COLUMNS, ID, INPUT_QUANTITIES
 
         specs = {ID: INPUT_QUANTITIES["star_id"].spec, **BASE_COLUMNS}
-        write_table(pd.DataFrame({c: pd.Series([], dtype="int64") for c in specs}), out_table, specs, prov,
-                    stage=STAGE)
+        empty = pd.DataFrame({c: pd.Series([], dtype="int64") for c in specs})
+        empty[ID] = pd.Series([], dtype="int64" if ids_int else object)
+        write_table(empty, out_table, specs, prov, stage=STAGE)
 
     reasons = Counter()
     by_stage = Counter()
@@ -67,6 +85,7 @@ def merge(table_paths, reject_paths, manifest_path, out_table, out_rejects, out_
     with StreamingTableWriter(out_rejects, REJECT_COLUMNS, rprov, stage=STAGE) as w:
         for p in reject_paths:
             df, _, _ = read_table(p)
+            df = harmonise_ids([df], ids_int)[0]
             n_rej += len(df)
             reasons.update(zip(df["stage"], df["reason"]))
             by_stage.update(df["stage"])

@@ -27,6 +27,7 @@ import pandas as pd
 
 from .. import columns as C
 from ..catalogue import read_catalogue
+from .ingest_bands import band_columns, check_error_column, magnitude_error
 from ..errors import ConfigError, InputError
 from ..reasons import Rejector, make_rejects, set_flag
 from ..tableio import Column
@@ -59,14 +60,14 @@ def wanted_columns(settings):
             raise ConfigError(f"catalogue.columns: the required quantity '{q}' is not mapped to a column")
     names = list(cols.values())
     for band in settings["bands"].values():
-        names += [band["mag"], band["error"]]
+        names += band_columns(band)
     names += list(settings["catalogue"].get("keep_columns", []))
     return names
 
 
-def _parse_numeric(raw, name, path, rows):
+def _parse_numeric(data, name, raw):
     """Values as float, the mask of entries that were text, and a clear error if most are text."""
-    values = raw[name]
+    values = data[name]
     if values.dtype.kind in "fiub":
         return np.array(values, dtype=float), np.zeros(len(values), dtype=bool)
     text = values.astype(object)
@@ -75,9 +76,76 @@ def _parse_numeric(raw, name, path, rows):
     bad = np.isnan(parsed) & ~blank & ~text.astype(str).str.strip().str.lower().isin(["nan", "null", "na"]).to_numpy()
     if bad.any() and bad.mean() > TEXT_COLUMN_FRACTION:
         i = int(np.argmax(bad))
+        where, row = raw.where(i)
         raise InputError(f"expected numbers, found text such as {str(text.iloc[i])!r} in {bad.mean():.0%} of the rows "
-                         "(is the column mapping right?)", path, row=int(rows[i]), column=name)
+                         "(is the column mapping right?)", where, row=row, column=name)
     return parsed, bad
+
+
+_INT64_MAX = "9223372036854775807"
+
+
+def text_ids_to_int(text):
+    """Identifiers given as text to int64, exactly (no float round trip); -1 where a text is no integer.
+
+    Integers up to 19 digits that fit int64 are accepted (Gaia source_id values have 19 digits).
+    """
+    t = pd.Series(np.asarray(text, dtype=object)).astype(str).str.strip()
+    body = t.str.lstrip("+-")
+    ok = body.str.fullmatch(r"\d{1,19}").to_numpy(dtype=bool).copy()
+    long = ok & (body.str.len().to_numpy() == 19)
+    ok[long] = (body[long] <= _INT64_MAX).to_numpy(dtype=bool)
+    return np.where(ok, t, "-1").astype(np.int64)
+
+
+def parse_ids(values, declared_kind=None):
+    """Identifiers in the catalogue's own type.
+
+    Parameters
+    ----------
+    values : pandas.Series
+        The identifier column as read.
+    declared_kind : str, optional
+        numpy kind the file declares for the column (FITS, VOTable, Parquet, ECSV); None for CSV,
+        whose identifiers are integers when every non-empty value is one that fits int64.
+
+    Returns
+    -------
+    ids : ndarray
+        int64 (-1 where a row has none) or text ("" where a row has none).
+    text : ndarray of object
+        The identifiers as text, for messages.
+    missing : ndarray of bool
+    is_int : bool
+    """
+    n = len(values)
+    if values.dtype.kind in "iu":
+        ids = values.to_numpy(dtype=np.int64)
+        return ids, pd.Series(ids).astype(str).to_numpy(dtype=object), np.zeros(n, dtype=bool), True
+    text = values.astype(object).where(values.notna(), "").astype(str).str.strip()
+    missing = (text == "").to_numpy()
+    if declared_kind is None:
+        as_int = text_ids_to_int(text)
+        is_int = bool(n) and bool(((as_int != -1) | missing | (text == "-1").to_numpy()).all())
+    else:
+        is_int = declared_kind in "iu"
+    if is_int:
+        return text_ids_to_int(text.where(~missing, "-1")), text.to_numpy(dtype=object), missing, True
+    return text.to_numpy(dtype=object), text.to_numpy(dtype=object), missing, False
+
+
+def _declared_unit_conflict(cfg_unit, file_unit):
+    """True if a unit from catalogue.units differs from the one the file declares."""
+    if cfg_unit in (None, "") or file_unit in (None, ""):
+        return False
+    if str(cfg_unit).strip() == str(file_unit).strip():
+        return False
+    from astropy import units as u
+
+    try:
+        return u.Unit(str(cfg_unit)) != u.Unit(str(file_unit))
+    except (ValueError, TypeError):
+        return True
 
 
 def check_parallax_unit(plx_err_mas, path, column, unit_source):
@@ -128,27 +196,16 @@ def ingest(raw, settings, dedupe=True):
     n = len(data)
 
     id_col = cat["columns"]["star_id"]
-    ids = data[id_col]
-    if ids.dtype.kind in "iu":
-        id_values = ids.to_numpy(dtype=np.int64)
-        id_text = pd.Series(id_values).astype(str).to_numpy(dtype=object)
-        missing_id = np.zeros(n, dtype=bool)
-    else:
-        id_text = ids.astype(object).where(ids.notna(), "").astype(str).str.strip().to_numpy(dtype=object)
-        missing_id = id_text == ""
-        # integer identifiers (as most surveys use) stay integers; up to 18 digits fit int64 exactly
-        digits = pd.Series(id_text).str.fullmatch(r"[+-]?\d{1,18}").to_numpy(dtype=bool)
-        if n and (digits | missing_id).all():
-            id_values = np.where(missing_id, "-1", id_text).astype(np.int64)
-        else:
-            id_values = id_text
+    id_values, id_text, missing_id, id_is_int = parse_ids(data[id_col], raw.types.get(id_col))
 
-    rj = Rejector(STAGE, id_text, rows)
+    rj = Rejector(STAGE, id_values, rows)
     reject = rj.reject
     if raw.malformed:
         bad_rows = np.array([r for r, _ in raw.malformed], dtype=np.int64)
         texts = [f"{t[:120]}" for _, t in raw.malformed]
-        bad_ids = [t.split(",")[0][:40] for _, t in raw.malformed]
+        bad_ids = pd.Series([t.split(",")[0].strip()[:40] for _, t in raw.malformed], dtype=object)
+        if id_is_int:
+            bad_ids = text_ids_to_int(bad_ids)
         rj.add(make_rejects(bad_ids, bad_rows, STAGE, "malformed_row", texts))
 
     reject(missing_id, "missing_id", f"column '{id_col}' is empty")
@@ -158,12 +215,18 @@ def ingest(raw, settings, dedupe=True):
     units_cfg = cat.get("units", {}) or {}
 
     def numeric(name, quantity_key, canonical_unit):
-        values, text = _parse_numeric(data, name, path, rows)
+        values, text = _parse_numeric(data, name, raw)
         if text.any():
             shown = data[name].astype(str).to_numpy()
             reject(text, "not_a_number", lambda i: [f"column '{name}': {v!r} is not a number" for v in shown[i]])
         file_unit = raw.units.get(name)
-        unit = file_unit if file_unit not in (None, "") else units_cfg.get(quantity_key)
+        cfg_unit = units_cfg.get(quantity_key) if quantity_key else None
+        if _declared_unit_conflict(cfg_unit, file_unit):
+            raise InputError(f"catalogue.units.{quantity_key} is {cfg_unit!r} but the file declares {file_unit!r} for "
+                             "this column; remove the catalogue.units entry or correct it", path, column=name)
+        unit = file_unit if file_unit not in (None, "") else cfg_unit
+        if canonical_unit is None:
+            return values
         factor = conversion_factor(unit, canonical_unit, path, name)
         return values * factor if factor != 1.0 else values
 
@@ -177,7 +240,8 @@ def ingest(raw, settings, dedupe=True):
         if inf.any() and not q.required and key not in ("teff_spec", "logg_spec"):   # those two: flagged below
             out[q.column][inf] = np.nan
             log.warning("%s: column '%s': %d infinite value(s) treated as not measured (first at row %d)",
-                        path, user_name, int(inf.sum()), int(rows[np.argmax(inf)]))
+                        raw.where(int(np.argmax(inf)))[0], user_name, int(inf.sum()),
+                        raw.where(int(np.argmax(inf)))[1])
 
     err_name = cat["columns"]["parallax_error"]
     if raw.units.get(err_name):
@@ -212,10 +276,21 @@ def ingest(raw, settings, dedupe=True):
     sentinels = np.asarray(cat.get("missing_values", []), dtype=float)
     n_bands = np.zeros(n, dtype=int)
     for band, b in settings["bands"].items():
+        kind = b.get("error_kind", "mag")
         mag = numeric(b["mag"], None, "mag")
-        err = numeric(b["error"], None, "mag")
-        unusable = (~np.isfinite(mag) | np.isin(mag, sentinels) | (mag < MAG_PLAUSIBLE[0]) | (mag > MAG_PLAUSIBLE[1])
-                    | ~np.isfinite(err) | (err <= 0) | np.isin(err, sentinels))
+        raw_err = numeric(b["error"], None, "mag" if kind == "mag" else "")
+        check_error_column(raw_err, band, b, path, sentinels)
+        flux = None
+        if kind == "flux":
+            flux = numeric(b["flux"], None, None)
+            funit, eunit = raw.units.get(b["flux"]), raw.units.get(b["error"])
+            if funit and eunit and funit != eunit:
+                raw_err = raw_err * conversion_factor(eunit, funit, path, b["error"])
+        bad_raw = ~np.isfinite(raw_err) | (raw_err <= 0) | np.isin(raw_err, sentinels)
+        err = magnitude_error(raw_err, flux, kind)
+        mag = mag + float(b.get("mag_offset", 0.0) or 0.0)
+        unusable = (~np.isfinite(mag) | np.isin(mag - float(b.get("mag_offset", 0.0) or 0.0), sentinels)
+                    | (mag < MAG_PLAUSIBLE[0]) | (mag > MAG_PLAUSIBLE[1]) | bad_raw | ~np.isfinite(err) | (err <= 0))
         mag = np.where(unusable, np.nan, mag)
         err = np.where(unusable, np.nan, err)
         bits = set_flag(bits, "band_missing", unusable)
@@ -223,6 +298,10 @@ def ingest(raw, settings, dedupe=True):
         out[C.mag_column(band)] = mag
         out[C.mag_err_column(band)] = err
         specs.update(C.band_specs(band, b["passband"], b["system"]))
+        if kind != "mag":
+            specs[C.mag_err_column(band)] = Column("mag", f"Uncertainty of the {band} magnitude, converted at ingest "
+                                                   f"from {'the flux signal-to-noise' if kind == 'flux_over_error' else 'the flux uncertainty'}"
+                                                   " (sigma_m = 2.5/ln10 sigma_F/F)", "stat.error;phot.mag")
     reject(n_bands == 0, "no_photometry", "no usable magnitude in any configured band")
 
     # duplicated identifiers: keep the first occurrence among the rows still alive
@@ -241,6 +320,7 @@ def ingest(raw, settings, dedupe=True):
         specs[name] = Column(unit or "", f"Column '{name}' copied from the input catalogue", "")
 
     table = pd.DataFrame({C.ID: id_values, C.ROW: rows, **out, C.FLAGS: bits})
+    table.attrs["id_is_int"] = id_is_int
     specs[C.FLAGS] = C.BASE_COLUMNS[C.FLAGS]
     table = table.loc[rj.alive].reset_index(drop=True)
     return table, rj.rejects(), specs

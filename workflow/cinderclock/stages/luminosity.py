@@ -29,7 +29,8 @@ STAGE = "luminosity"
 def column_specs(bands):
     """Descriptions of the columns this stage adds."""
     specs = {
-        "plx_corr_mas": Column("mas", "Parallax corrected for the configured zero point", "pos.parallax.trig"),
+        "plx_corr_mas": Column("mas", "Parallax corrected for the zero point (plx_mas - plx_zp_mas)",
+                               "pos.parallax.trig"),
         "dist_pc": Column("pc", "Distance: inverse corrected parallax, or the mode of the EDSD posterior",
                           "pos.distance"),
         "dist_lo_pc": Column("pc", "16th percentile of the distance", "pos.distance;stat.min"),
@@ -90,7 +91,12 @@ def luminosity(table, settings, grid):
     bits = out[C.FLAGS].to_numpy()
     rj = Rejector(STAGE, out[C.ID].to_numpy(), out[C.ROW].to_numpy())
 
-    zp = settings["astrometry"]["parallax_zero_point_mas"]
+    if "plx_zp_mas" in out:                        # each star's zero point, from the select stage
+        zp = out["plx_zp_mas"].to_numpy(float)
+    else:
+        from .select import zero_points
+
+        zp = zero_points(out, settings)[0]
     dcfg = lum["distance"]
     d = distances(out["plx_mas"].to_numpy(float), out["plx_err_mas"].to_numpy(float), zero_point_mas=zp,
                   min_snr_inverse=dcfg["min_parallax_over_error_inverse"],

@@ -3,7 +3,9 @@
 Cuts, applied in this order, each rejecting with its own reason code:
 
 1. ``min_parallax_over_error``: (parallax - zero point) / error at least this value. Zero and
-   negative parallaxes fail it.
+   negative parallaxes fail it. The zero point is the configured constant or each star's own
+   (``astrometry.zero_point_model``: Lindegren et al. 2021, or a catalogue column); it is written
+   as ``plx_zp_mas`` for the later stages.
 2. ``max_distance_pc``: inverse corrected parallax at most this distance (``null``: no limit).
 3. ``max_mag_error``: per-band upper limits on magnitude uncertainties (a missing band passes).
 4. ``quality_cuts``: a list of ``{column, min, max}`` on catalogue columns kept at ingest.
@@ -19,8 +21,12 @@ import numpy as np
 from .. import columns as C
 from ..errors import ConfigError
 from ..reasons import Rejector
+from ..tableio import Column
 
 STAGE = "select"
+#: The column this stage adds.
+ZERO_POINT_COLUMN = {"plx_zp_mas": Column("mas", "Parallax zero point applied (corrected parallax = plx_mas - "
+                                                 "plx_zp_mas)", "pos.parallax.zeroPoint")}
 
 
 def points_in_polygon(x, y, vertices):
@@ -52,6 +58,17 @@ def corrected_parallax(table, zero_point_mas):
     return table["plx_mas"].to_numpy(dtype=float) - zero_point_mas
 
 
+def zero_points(table, settings):
+    """Each star's parallax zero point (mas) and the flag bits it sets (see :func:`cinderclock.distance.star_zero_points`)."""
+    from ..distance import star_zero_points
+    from ..reasons import set_flag
+
+    zp, outside, fallback = star_zero_points(table, settings["astrometry"], settings.get("bands"))
+    bits = table[C.FLAGS].to_numpy(dtype=np.int64) if C.FLAGS in table else np.zeros(len(table), dtype=np.int64)
+    bits = set_flag(set_flag(bits, "zero_point_out_of_range", outside), "zero_point_fallback", fallback)
+    return zp, bits
+
+
 def select(table, settings):
     """Apply the selection.
 
@@ -68,7 +85,10 @@ def select(table, settings):
     rejects : pandas.DataFrame
     """
     sel = settings["select"]
-    zp = settings["astrometry"]["parallax_zero_point_mas"]
+    table = table.copy()
+    zp, bits = zero_points(table, settings)
+    table["plx_zp_mas"] = zp
+    table[C.FLAGS] = bits
     n = len(table)
     rj = Rejector(STAGE, table[C.ID].to_numpy(), table[C.ROW].to_numpy())
     reject = rj.reject
