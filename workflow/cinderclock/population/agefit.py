@@ -232,6 +232,58 @@ def _bin_sums(mbol, weights, edges):
     return np.bincount(k[ok], minlength=nb).astype(float), np.bincount(k[ok], weights=weights[ok], minlength=nb)
 
 
+@dataclass
+class BinnedSample:
+    """Counts and exposures of a sample in the fitted bins, and the fold of its M_bol errors.
+
+    Built by :func:`bin_sample`; :meth:`model` turns a model callable into the (folded) grid the
+    likelihood compares with the counts.
+    """
+
+    mbol: np.ndarray
+    inv_vmax: np.ndarray
+    edges: np.ndarray
+    counts: np.ndarray
+    exposure: np.ndarray
+    fold: object = None
+    volume: np.ndarray = None
+
+    @property
+    def folded(self):
+        return self.fold is not None
+
+    def model(self, model, params):
+        """Model grid (P, K) for parameters ``params`` from ``callable(edges, params) -> (P, len(edges) - 1)``
+        (per magnitude), folded with the errors if the sample has them; an array is used as it is."""
+        if not callable(model):
+            if self.folded:
+                raise ValueError("folding measurement errors needs the model as a callable(edges, params)")
+            return np.asarray(model, dtype=float)
+        if not self.folded:
+            return model(self.edges, params)
+        return self.fold.effective_model(model(self.fold.fine_edges, params), self.volume, self.exposure)
+
+
+def bin_sample(mbol, inv_vmax, edges, mbol_err=None, max_sigma_mag=1.0, subdivisions=5):
+    """:class:`BinnedSample` of the usable stars (finite M_bol and 1/Vmax); with ``mbol_err`` (mag)
+    the errors are folded in (:mod:`cinderclock.population.smear`) unless none is positive."""
+    edges = np.asarray(edges, dtype=float)
+    x = np.asarray(mbol, dtype=float)
+    w = np.asarray(inv_vmax, dtype=float)
+    valid = np.isfinite(w) & np.isfinite(x)
+    x, w = x[valid], w[valid]
+    counts, sums = _bin_sums(x, w, edges)
+    expo = exposures(counts, sums, np.diff(edges), 0.5 * (edges[:-1] + edges[1:]))[0]
+    out = BinnedSample(mbol=x, inv_vmax=w, edges=edges, counts=counts, exposure=expo)
+    errs = None if mbol_err is None else np.asarray(mbol_err, dtype=float)[valid]
+    if errs is not None and np.any(np.isfinite(errs) & (errs > 0)) and counts.sum() > 0:
+        from .smear import build_fold, volume_per_mag, volume_points
+
+        out.fold = build_fold(x, errs, edges, max_sigma_mag, subdivisions)
+        out.volume = volume_per_mag(*volume_points(x, w, out.fold.fine_edges), out.fold.fine_edges)
+    return out
+
+
 def fit_age(mbol, inv_vmax, edges, ages_gyr, model, n_boot=200, seed=0, floor=DEFAULT_FLOOR, mbol_err=None,
             max_sigma_mag=1.0, subdivisions=5, gof_simulations=200):
     """Maximum-likelihood population age with bootstrap and likelihood intervals and a goodness of fit.
@@ -268,30 +320,15 @@ def fit_age(mbol, inv_vmax, edges, ages_gyr, model, n_boot=200, seed=0, floor=DE
     """
     from .diagnostics import count_modes, goodness_of_fit, poisson_deviance, simulated_deviances
 
-    edges = np.asarray(edges, dtype=float)
     ages = np.asarray(ages_gyr, dtype=float)
+    data = bin_sample(mbol, inv_vmax, edges, mbol_err, max_sigma_mag, subdivisions)
+    edges, x, w, counts = data.edges, data.mbol, data.inv_vmax, data.counts
     widths = np.diff(edges)
     centres = 0.5 * (edges[:-1] + edges[1:])
-    x = np.asarray(mbol, dtype=float)
-    w = np.asarray(inv_vmax, dtype=float)
-    valid = np.isfinite(w) & np.isfinite(x)
-    x, w = x[valid], w[valid]
-    counts, sums = _bin_sums(x, w, edges)
-    expo = exposures(counts, sums, widths, centres)
-    errs = None if mbol_err is None else np.asarray(mbol_err, dtype=float)[valid]
-    folded = errs is not None and bool(np.any(np.isfinite(errs) & (errs > 0)))
-    median_err = float("nan")
-    if folded:
-        if not callable(model):
-            raise ValueError("folding measurement errors needs the model as a callable(edges, ages)")
-        from .smear import build_fold, volume_per_mag, volume_points
-
-        fold = build_fold(x, errs, edges, max_sigma_mag, subdivisions)
-        v = volume_per_mag(*volume_points(x, w, fold.fine_edges), fold.fine_edges)
-        m = fold.effective_model(model(fold.fine_edges, ages), v, expo[0])
-        median_err = fold.median_sigma_mag
-    else:
-        m = model(edges, ages) if callable(model) else np.asarray(model, dtype=float)
+    expo = data.exposure[None, :]
+    m = data.model(model, ages)
+    folded = data.folded
+    median_err = data.fold.median_sigma_mag if folded else float("nan")
     lnl, amp = profile_loglike(counts, expo, m, floor)
     best, edge = refine_maximum(ages, lnl)
     jbest = int(np.argmax(lnl[0]))
