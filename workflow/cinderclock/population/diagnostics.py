@@ -10,9 +10,10 @@ Goodness of fit
     as large as the observed one, (1 + #{D_sim >= D}) / (1 + S). The chi-square approximation
     (D against K - 2 degrees of freedom) is reported beside it.
 Modes of the bootstrap
-    A Gaussian kernel density of the bootstrap ages with Silverman's bandwidth,
-    0.9 min(sd, IQR / 1.34) n^(-1/5) (Silverman 1986, Density Estimation, eq. 3.31 -- from memory;
-    the rule oversmooths multimodal data, so it errs towards one mode); a mode counts if its
+    A Gaussian kernel density of the bootstrap ages with the normal-reference bandwidth
+    1.06 sd n^(-1/5) (Silverman 1986, Density Estimation, eq. 3.28 -- from memory; it oversmooths
+    multimodal data, so it errs towards one mode: the bootstrap ages of a binned fit cluster on a
+    scale of a tenth of a Gyr, which is not what this warning is about); a mode counts if its
     height is at least :data:`MODE_MIN_HEIGHT` of the highest and the density between it and its
     neighbour dips below :data:`MODE_MAX_DIP` of the lower of the two (our thresholds).
 Warnings
@@ -37,9 +38,9 @@ WARNINGS = {
                          "sample size: its uncertainties are rough.",
 }
 #: A secondary mode must reach this fraction of the highest mode's density.
-MODE_MIN_HEIGHT = 0.1
+MODE_MIN_HEIGHT = 0.25
 #: ... and the density between two modes must dip below this fraction of the lower one.
-MODE_MAX_DIP = 0.7
+MODE_MAX_DIP = 0.6
 
 
 def warning(code, message):
@@ -111,11 +112,9 @@ def count_modes(x):
     if x.size < 10:
         return (1 if x.size else 0), ([float(np.median(x))] if x.size else [])
     sd = float(np.std(x, ddof=1))
-    iqr = float(np.subtract(*np.percentile(x, [75, 25])))
-    scale = min(sd, iqr / 1.34) if iqr > 0 else sd
-    if scale <= 0:
+    if sd <= 0:
         return 1, [float(x[0])]
-    h = 0.9 * scale * x.size ** -0.2
+    h = 1.06 * sd * x.size ** -0.2
     grid = np.linspace(x.min() - 3 * h, x.max() + 3 * h, 512)
     dens = np.zeros(grid.size)
     for s in range(0, x.size, 256):                      # bounded memory for many resamples
