@@ -141,12 +141,9 @@ def test_posterior_draws_are_the_uncertainty_stage_draws(_default_config):
     from cinderclock.population.draws import DRAW_COLUMNS, QUANTITY_KEYS, shard_draws
     from cinderclock.simulate import consistent_catalogue
 
-    cfg = copy.deepcopy(_default_config)
-    cfg["select"].update(wd_region=None, quality_cuts=[], max_mag_error={})
-    keep = ("star_id", "parallax", "parallax_error", "teff_spec", "teff_spec_error", "logg_spec", "logg_spec_error")
-    cfg["catalogue"]["columns"] = {k: v for k, v in cfg["catalogue"]["columns"].items() if k in keep}
-    cfg["catalogue"]["keep_columns"] = []
-    cfg["cooling"]["masses_msun"] = {"min": 0.45, "max": 1.1, "step": 0.05}
+    from helpers import spectroscopic_config
+
+    cfg = spectroscopic_config(_default_config)
     cfg["uncertainty"].update(draws=40, chunk_stars=25)
     models = ModelSet.build(cfg)
     cat, _ = consistent_catalogue(models, 60, seed=3)
