@@ -50,8 +50,7 @@ rule star_formation_history:
         sfh=f"{R}/population/sfh.parquet",
         correlation=f"{R}/population/sfh_correlation.parquet",
         summary=f"{R}/population/sfh.json",
-        figure=report(f"{R}/figures/star_formation_history.png", caption="../report/star_formation_history.rst",
-                      category="Figures"),
+        figure=report(f"{R}/figures/star_formation_history.png", caption="../report/star_formation_history.rst", category="Figures"),
         figure_pdf=f"{R}/figures/star_formation_history.pdf",
     log:
         f"{R}/logs/population/star_formation_history.log",
