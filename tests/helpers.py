@@ -1,4 +1,4 @@
-"""Helpers shared by the ingest tests: a small well-formed catalogue and a one-call ingest."""
+"""Helpers shared by the tests: a small well-formed catalogue, a one-call ingest, a quick chain configuration."""
 
 import numpy as np
 import pandas as pd
@@ -29,3 +29,17 @@ def ingest_file(tmp_path, df, config, name="cat.csv", text=None):
         df.to_parquet(path, index=False)
     config["catalogue"]["path"] = str(path)
     return load_and_ingest(stage_settings(config, "ingest"))
+
+
+def spectroscopic_config(config):
+    """A copy of ``config`` reading only identifiers, parallaxes and spectroscopic Teff/log g, without
+    selection cuts, on a coarse cooling mass grid (quick in-memory chains)."""
+    import copy
+
+    cfg = copy.deepcopy(config)
+    cfg["select"].update(wd_region=None, quality_cuts=[], max_mag_error={})
+    keep = ("star_id", "parallax", "parallax_error", "teff_spec", "teff_spec_error", "logg_spec", "logg_spec_error")
+    cfg["catalogue"]["columns"] = {k: v for k, v in cfg["catalogue"]["columns"].items() if k in keep}
+    cfg["catalogue"]["keep_columns"] = []
+    cfg["cooling"]["masses_msun"] = {"min": 0.45, "max": 1.1, "step": 0.05}
+    return cfg

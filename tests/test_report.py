@@ -27,7 +27,8 @@ import yaml
 from cinderclock.simulate import make_catalogue, write_csv
 
 ROOT = Path(__file__).resolve().parents[1]
-FIGURES = ("colour_magnitude", "mass_distribution", "age_distributions", "luminosity_function", "age_fit")
+FIGURES = ("colour_magnitude", "mass_distribution", "age_distributions", "luminosity_function", "age_fit",
+           "star_formation_history")
 
 
 def chromium_path():

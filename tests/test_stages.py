@@ -17,12 +17,9 @@ def _flag(table, name):
 
 @pytest.fixture(scope="module")
 def base(_default_config):
-    cfg = copy.deepcopy(_default_config)
-    cfg["select"].update(wd_region=None, quality_cuts=[], max_mag_error={})
-    keep = ("star_id", "parallax", "parallax_error", "teff_spec", "teff_spec_error", "logg_spec", "logg_spec_error")
-    cfg["catalogue"]["columns"] = {k: v for k, v in cfg["catalogue"]["columns"].items() if k in keep}
-    cfg["catalogue"]["keep_columns"] = []
-    cfg["cooling"]["masses_msun"] = {"min": 0.45, "max": 1.1, "step": 0.05}
+    from helpers import spectroscopic_config
+
+    cfg = spectroscopic_config(_default_config)
     cfg["uncertainty"]["draws"] = 0
     return cfg, ModelSet.build(cfg)
 

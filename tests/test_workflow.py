@@ -102,7 +102,7 @@ def test_cooling_change_reruns_only_cooling_and_after(run_dir):
     finally:
         cfg_path.write_text(original)
     assert jobs == {"cooling_model": 1, "cooling": 3, "uncertainty": 3, "final": 1, "handoff": 1,
-                    "luminosity_function": 1, "population_age": 1, "figures": 1, "run_summary": 1, "all": 1}
+                    "luminosity_function": 1, "population_age": 1, "star_formation_history": 1, "figures": 1, "run_summary": 1, "all": 1}
 
 
 def test_changed_row_reruns_only_its_shard(run_dir):
@@ -120,7 +120,7 @@ def test_changed_row_reruns_only_its_shard(run_dir):
         ran = re.findall(r"^(?:local)?(?:rule|checkpoint) (\w+):", out.stdout + out.stderr, re.M)
         shards = re.findall(r"wildcards: shard=(s\d{4})", out.stdout + out.stderr)
         assert sorted(ran) == sorted(["ingest", "select", "luminosity", "mass", "cooling", "uncertainty", "final",
-                                      "handoff", "luminosity_function", "population_age", "figures", "run_summary",
+                                      "handoff", "luminosity_function", "population_age", "star_formation_history", "figures", "run_summary",
                                       "all"])
         assert set(shards) == {"s0001"}
     finally:

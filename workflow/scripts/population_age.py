@@ -8,10 +8,14 @@ def body(smk):
     from cinderclock.population.stages import MODEL_COLUMNS, PROFILE_COLUMNS, population_age_stage
     from cinderclock.tableio import read_table
 
+    import json
+    from pathlib import Path
+
     stars, _, meta = read_table(smk.input.stars)
+    lf_summary = json.loads(Path(smk.input.lf_summary).read_text())
     cool_df, _, cool_meta = read_table(smk.input.cooling)
     link = cooling_from_table(cool_df, cool_meta, smk.input.cooling)
-    summary, model, profile = population_age_stage(stars, link, smk.params.settings)
+    summary, model, profile = population_age_stage(stars, link, smk.params.settings, lf_summary)
     upstream = [meta.get("provenance", {}), cool_meta.get("provenance", {})]
     prov = stage_provenance("population_age", smk.params.settings, [smk.input.stars, smk.input.cooling],
                             models=summary["models"], upstream=upstream)
@@ -22,8 +26,11 @@ def body(smk):
         log.warning("%s", summary["cautions"][0])
     else:
         lo, hi = (f"{v:.3f}" if v is not None else "n/a" for v in summary["interval68_gyr"])
-        log.info("population age %.3f Gyr (68 %%: %s - %s) from %d stars", summary["age_gyr"], lo, hi,
-                 summary["n_stars_in_fit"])
+        g = summary["goodness_of_fit"]
+        log.info("population age %.3f Gyr (68 %%: %s - %s) from %d stars; deviance %.1f / %d, p = %.3g",
+                 summary["age_gyr"], lo, hi, summary["n_stars_in_fit"], g["deviance"], g["dof"], g["p_value"])
+    for w in summary["warnings"]:
+        log.warning("%s: %s", w["code"], w["message"])
 
 
 run(snakemake, body)  # noqa: F821

@@ -14,6 +14,9 @@ def body(smk):
     write_stage(stars, smk.output.stars, STAR_COLUMNS, prov, "luminosity_function")
     write_stage(lf, smk.output.lf, LF_COLUMNS, prov, "luminosity_function")
     write_json(summary, smk.output.summary)
+    if summary.get("empty"):
+        log.warning("%s", summary["empty"])
+        return
     v = summary["v_over_vmax"]
     log.info("%d stars used; <V/Vmax> = %.4f (0.5 +- %.4f)", v["n"], v["mean"], v["sigma"])
 

@@ -15,7 +15,9 @@ def body(smk):
     prov = read_metadata(smk.input.table).get("provenance", {})
     lf = json.loads(Path(smk.input.lf).read_text())
     fit = json.loads(Path(smk.input.fit).read_text())
-    write_text(render(counts, prov, dict(smk.params.config), lf, fit), smk.output[0])
+    sfh = json.loads(Path(smk.input.sfh).read_text())
+    draws = json.loads(Path(smk.input.draws[0]).read_text()) if smk.input.draws else None
+    write_text(render(counts, prov, dict(smk.params.config), lf, fit, sfh, draws), smk.output[0])
     log.info("wrote %s", smk.output[0])
 
 

@@ -18,19 +18,32 @@ limit keeps it flat). The model is floored at ``floor`` times its peak so that o
 beyond a young model's cut-off costs ln(floor) instead of minus infinity (a tolerance for
 contaminants and measurement scatter; our choice).
 
-Uncertainty: a bootstrap over the stars (counts and exposures recomputed, the fit repeated)
-with a configurable number of resamples and seed; the percentiles 16-84 and 2.5-97.5 of the
-bootstrap ages are the 68 % and 95 % intervals. The profile-likelihood interval (ln L within 0.5
-of its maximum) is reported beside them.
+Measurement errors: with the stars' M_bol errors the model is folded with their distribution
+before it is compared with the counts (:mod:`cinderclock.population.smear`); without them it is
+compared as it is.
+
+Uncertainty, three intervals:
+
+* the bootstrap over the stars (counts and exposures recomputed, the fit repeated) with a
+  configurable number of resamples and seed; the percentiles 16-84 and 2.5-97.5 of the bootstrap
+  ages are the 68 % and 95 % *bootstrap* intervals;
+* the profile-likelihood intervals, ln L within 0.5 (68 %) and 1.92 (95 %) of its maximum
+  (Wilks' theorem; exact only for a regular likelihood, which the luminosity function's cut-off
+  is not);
+* their calibration on simulated samples is measured by ``benchmarks/bench_population_intervals.py``
+  (see the README for the figures and which interval to quote).
+
+Goodness of fit (deviance with the same floor, parametric-bootstrap p-value) and the modes of the
+bootstrap distribution: :mod:`cinderclock.population.diagnostics`.
 
 Cautions: the fitted age is that of the *model*: it moves with the cooling model's calibration
-(Mestel ages are indicative only), the IFMR and the lifetimes; measurement errors in M_bol are
-not folded into the model; an age at the edge of the grid is flagged.
+(Mestel ages are indicative only), the IFMR and the lifetimes; an age at the edge of the grid is
+flagged.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -72,6 +85,13 @@ def exposures(counts, sums, widths, centres):
     return out
 
 
+def floored(model, floor=DEFAULT_FLOOR):
+    """The model with every value raised to at least ``floor`` times its row's peak (and above zero)."""
+    model = np.asarray(model, dtype=float)
+    m = np.maximum(model, floor * np.max(model, axis=1, keepdims=True))
+    return np.where(m > 0, m, np.finfo(float).tiny)
+
+
 def profile_loglike(counts, expo, model, floor=DEFAULT_FLOOR):
     """Profile Poisson log-likelihood over a grid of models.
 
@@ -91,8 +111,7 @@ def profile_loglike(counts, expo, model, floor=DEFAULT_FLOOR):
     amp : (B, T) ndarray
         Maximum-likelihood normalisation A (model units -> pc^-3 mag^-1).
     """
-    m = np.maximum(model, floor * np.max(model, axis=1, keepdims=True))
-    m = np.where(m > 0, m, np.finfo(float).tiny)
+    m = floored(model, floor)
     n = np.atleast_2d(counts)
     e = np.atleast_2d(expo)
     pred = e @ m.T                                             # (B, T): sum_k m_k e_k
@@ -148,6 +167,10 @@ def likelihood_interval(ages, lnl, delta=0.5):
     return float(lo), float(hi)
 
 
+#: Delta ln L of the 95 % profile-likelihood interval (chi-square, one parameter: 3.841 / 2).
+DELTA_LNL_95 = 1.920729
+
+
 @dataclass
 class AgeFit:
     """Result of :func:`fit_age` (ages in Gyr)."""
@@ -159,15 +182,29 @@ class AgeFit:
     interval95_gyr: tuple
     sigma_gyr: float
     likelihood_interval_gyr: tuple
+    likelihood_interval95_gyr: tuple
     bootstrap_ages_gyr: np.ndarray
     ages_grid_gyr: np.ndarray
     profile_lnl: np.ndarray
     counts: np.ndarray
     exposure: np.ndarray
+    expected: np.ndarray
     edges: np.ndarray
-    deviance: float
-    dof: int
+    goodness: dict
+    bootstrap_modes: int
+    bootstrap_mode_ages_gyr: list
+    errors_folded: bool
+    median_mbol_err: float
     n_stars: int
+    effective_model: np.ndarray = field(repr=False, default=None)
+
+    @property
+    def deviance(self):
+        return self.goodness["deviance"]
+
+    @property
+    def dof(self):
+        return self.goodness["dof"]
 
     def summary(self):
         """JSON-ready dictionary (without the large arrays except the bootstrap ages)."""
@@ -175,66 +212,136 @@ class AgeFit:
             "age_gyr": self.age_gyr, "at_grid_edge": self.at_grid_edge, "sigma_gyr": self.sigma_gyr,
             "interval68_gyr": list(self.interval68_gyr), "interval95_gyr": list(self.interval95_gyr),
             "likelihood_interval_gyr": list(self.likelihood_interval_gyr),
+            "likelihood_interval95_gyr": list(self.likelihood_interval95_gyr),
             "amplitude_per_pc3_per_gyr": self.amplitude, "deviance": self.deviance, "dof": self.dof,
+            "goodness_of_fit": dict(self.goodness),
             "n_stars_in_fit": self.n_stars, "fit_edges_mbol": [float(e) for e in self.edges],
-            "counts": [int(c) for c in self.counts], "bootstrap_resamples": int(self.bootstrap_ages_gyr.size),
+            "counts": [int(c) for c in self.counts], "expected_counts": [float(m) for m in self.expected],
+            "bootstrap_resamples": int(self.bootstrap_ages_gyr.size),
             "bootstrap_ages_gyr": [round(float(a), 5) for a in self.bootstrap_ages_gyr],
+            "bootstrap_modes": int(self.bootstrap_modes),
+            "bootstrap_mode_ages_gyr": [float(a) for a in self.bootstrap_mode_ages_gyr],
+            "measurement_errors_folded": bool(self.errors_folded), "median_mbol_err_mag": self.median_mbol_err,
         }
 
 
-def fit_age(mbol, inv_vmax, edges, ages_gyr, model, n_boot=200, seed=0, floor=DEFAULT_FLOOR):
-    """Maximum-likelihood population age with a bootstrap interval.
+def _bin_sums(mbol, weights, edges):
+    k = bin_index(mbol, edges)
+    ok = k >= 0
+    nb = edges.size - 1
+    return np.bincount(k[ok], minlength=nb).astype(float), np.bincount(k[ok], weights=weights[ok], minlength=nb)
+
+
+@dataclass
+class BinnedSample:
+    """Counts and exposures of a sample in the fitted bins, and the fold of its M_bol errors.
+
+    Built by :func:`bin_sample`; :meth:`model` turns a model callable into the (folded) grid the
+    likelihood compares with the counts.
+    """
+
+    mbol: np.ndarray
+    inv_vmax: np.ndarray
+    edges: np.ndarray
+    counts: np.ndarray
+    exposure: np.ndarray
+    fold: object = None
+    volume: np.ndarray = None
+
+    @property
+    def folded(self):
+        return self.fold is not None
+
+    def model(self, model, params):
+        """Model grid (P, K) for parameters ``params`` from ``callable(edges, params) -> (P, len(edges) - 1)``
+        (per magnitude), folded with the errors if the sample has them; an array is used as it is."""
+        if not callable(model):
+            if self.folded:
+                raise ValueError("folding measurement errors needs the model as a callable(edges, params)")
+            return np.asarray(model, dtype=float)
+        if not self.folded:
+            return model(self.edges, params)
+        return self.fold.effective_model(model(self.fold.fine_edges, params), self.volume, self.exposure)
+
+
+def bin_sample(mbol, inv_vmax, edges, mbol_err=None, max_sigma_mag=1.0, subdivisions=5):
+    """:class:`BinnedSample` of the usable stars (finite M_bol and 1/Vmax); with ``mbol_err`` (mag)
+    the errors are folded in (:mod:`cinderclock.population.smear`) unless none is positive."""
+    edges = np.asarray(edges, dtype=float)
+    x = np.asarray(mbol, dtype=float)
+    w = np.asarray(inv_vmax, dtype=float)
+    valid = np.isfinite(w) & np.isfinite(x)
+    x, w = x[valid], w[valid]
+    counts, sums = _bin_sums(x, w, edges)
+    expo = exposures(counts, sums, np.diff(edges), 0.5 * (edges[:-1] + edges[1:]))[0]
+    out = BinnedSample(mbol=x, inv_vmax=w, edges=edges, counts=counts, exposure=expo)
+    errs = None if mbol_err is None else np.asarray(mbol_err, dtype=float)[valid]
+    if errs is not None and np.any(np.isfinite(errs) & (errs > 0)) and counts.sum() > 0:
+        from .smear import build_fold, volume_per_mag, volume_points
+
+        out.fold = build_fold(x, errs, edges, max_sigma_mag, subdivisions)
+        out.volume = volume_per_mag(*volume_points(x, w, out.fold.fine_edges), out.fold.fine_edges)
+    return out
+
+
+def fit_age(mbol, inv_vmax, edges, ages_gyr, model, n_boot=200, seed=0, floor=DEFAULT_FLOOR, mbol_err=None,
+            max_sigma_mag=1.0, subdivisions=5, gof_simulations=200):
+    """Maximum-likelihood population age with bootstrap and likelihood intervals and a goodness of fit.
 
     Parameters
     ----------
     mbol, inv_vmax : array_like
         Absolute bolometric magnitude (mag) and 1/Vmax (pc^-3) of every usable star (stars
-        outside the fitted range are allowed: they matter to the bootstrap's draw counts).
+        outside the fitted range are allowed: they matter to the bootstrap's draw counts and to
+        the volumes beyond the fitted range that the error fold uses).
     edges : (K + 1,) array_like
-        Bin edges of the fitted range (mag).
+        Evenly spaced bin edges of the fitted range (mag).
     ages_gyr : (T,) array_like
         Grid of population ages (Gyr), ascending and evenly spaced.
     model : (T, K) ndarray or callable
-        Model luminosity function per age on ``edges`` (e.g. from
-        :meth:`PopulationModel.luminosity_function`), or ``callable(edges, ages) -> (T, K)``.
+        Model luminosity function per age on ``edges``, or ``callable(edges, ages) -> (T, len(edges) - 1)``
+        (needed to fold in measurement errors, which evaluates it on a finer grid).
     n_boot : int
         Bootstrap resamples (0: none).
     seed : int
-        Seed of the bootstrap's random generator.
+        Seed of the bootstrap's and the goodness-of-fit simulations' random generator.
     floor : float
         Model floor relative to its peak (see the module docstring).
+    mbol_err : array_like, optional
+        Standard error of each star's M_bol (mag); given, the model is folded with them.
+    max_sigma_mag, subdivisions :
+        Settings of the fold (:func:`cinderclock.population.smear.build_fold`).
+    gof_simulations : int
+        Simulated samples of the goodness-of-fit p-value (0: none).
 
     Returns
     -------
     AgeFit
     """
-    edges = np.asarray(edges, dtype=float)
+    from .diagnostics import count_modes, goodness_of_fit, poisson_deviance, simulated_deviances
+
     ages = np.asarray(ages_gyr, dtype=float)
-    m = model(edges, ages) if callable(model) else np.asarray(model, dtype=float)
+    data = bin_sample(mbol, inv_vmax, edges, mbol_err, max_sigma_mag, subdivisions)
+    edges, x, w, counts = data.edges, data.mbol, data.inv_vmax, data.counts
     widths = np.diff(edges)
     centres = 0.5 * (edges[:-1] + edges[1:])
-    w = np.asarray(inv_vmax, dtype=float)
-    valid = np.isfinite(w) & np.isfinite(np.asarray(mbol, dtype=float))
-    k = bin_index(np.asarray(mbol, dtype=float)[valid], edges)
-    w = w[valid]
-    ok = k >= 0
-    nb = edges.size - 1
-    counts = np.bincount(k[ok], minlength=nb).astype(float)
-    sums = np.bincount(k[ok], weights=w[ok], minlength=nb)
-    expo = exposures(counts, sums, widths, centres)
+    expo = data.exposure[None, :]
+    m = data.model(model, ages)
+    folded = data.folded
+    median_err = data.fold.median_sigma_mag if folded else float("nan")
     lnl, amp = profile_loglike(counts, expo, m, floor)
     best, edge = refine_maximum(ages, lnl)
     jbest = int(np.argmax(lnl[0]))
     a_best = float(np.interp(best[0], ages, amp[0]))
-    mu = amp[0, jbest] * m[jbest] * expo[0]
-    with np.errstate(divide="ignore", invalid="ignore"):
-        dev_terms = np.where(counts > 0, counts * np.log(counts / mu), 0.0) - counts + mu
-    deviance = float(2.0 * np.sum(dev_terms))
+    mu = amp[0, jbest] * floored(m, floor)[jbest] * expo[0]          # the floored model of the likelihood
+    deviance = float(poisson_deviance(counts, mu))
+    rng = np.random.default_rng(seed)
 
     boot = np.empty(0)
     if n_boot > 0:
-        rng = np.random.default_rng(seed)
-        bc, bs = bootstrap_bin_sums(k[ok], w[ok], int(valid.sum()), nb, int(n_boot), rng)
+        k = bin_index(x, edges)
+        ok = k >= 0
+        bc, bs = bootstrap_bin_sums(k[ok], w[ok], int(x.size), edges.size - 1, int(n_boot), rng)
         bexpo = exposures(bc, bs, widths, centres)
         good = np.all(np.isfinite(bexpo), axis=1)
         blnl, _ = profile_loglike(bc[good], bexpo[good], m, floor)
@@ -246,11 +353,18 @@ def fit_age(mbol, inv_vmax, edges, ages_gyr, model, n_boot=200, seed=0, floor=DE
     else:
         i68 = i95 = (float("nan"), float("nan"))
         sigma = float("nan")
+    n_modes, mode_ages = count_modes(boot) if boot.size else (0, [])
+    dof = int(counts.size - 2)
+    sims = simulated_deviances(mu, expo[0], m, floor, int(gof_simulations), rng)
     return AgeFit(age_gyr=float(best[0]), at_grid_edge=bool(edge[0]), amplitude=a_best, interval68_gyr=i68,
                   interval95_gyr=i95, sigma_gyr=float(sigma),
-                  likelihood_interval_gyr=likelihood_interval(ages, lnl[0]), bootstrap_ages_gyr=np.asarray(boot),
-                  ages_grid_gyr=ages, profile_lnl=lnl[0] - lnl[0].max(), counts=counts, exposure=expo[0],
-                  edges=edges, deviance=deviance, dof=int(np.sum(counts >= 0) - 2), n_stars=int(counts.sum()))
+                  likelihood_interval_gyr=likelihood_interval(ages, lnl[0]),
+                  likelihood_interval95_gyr=likelihood_interval(ages, lnl[0], DELTA_LNL_95),
+                  bootstrap_ages_gyr=np.asarray(boot), ages_grid_gyr=ages, profile_lnl=lnl[0] - lnl[0].max(),
+                  counts=counts, exposure=expo[0], expected=mu, edges=edges,
+                  goodness=goodness_of_fit(deviance, dof, sims), bootstrap_modes=int(n_modes),
+                  bootstrap_mode_ages_gyr=mode_ages, errors_folded=folded, median_mbol_err=median_err,
+                  n_stars=int(counts.sum()), effective_model=m)
 
 
 def age_grid_from_settings(grid):

@@ -59,6 +59,11 @@ def save(fig, stem):
     return paths
 
 
+def _values(table, name):
+    """A column as floats, or NaN for every row when the table lacks it (e.g. an empty final table)."""
+    return table[name].to_numpy(dtype=float) if name in table else np.full(len(table), np.nan)
+
+
 def _note(ax, text):
     ax.text(0.5, 0.5, text, transform=ax.transAxes, ha="center", va="center", fontsize=9, color=INK,
             wrap=True, bbox={"boxstyle": "round,pad=0.6", "facecolor": "#f4f6f8", "edgecolor": MIST})
@@ -135,9 +140,9 @@ def colour_magnitude(table, tracks, colour, band, stem, age_marks_gyr=(0.1, 1.0,
 
     with plt.rc_context(_RC):
         fig, ax = plt.subplots(figsize=(6.4, 6.2))
-        x = table[f"absmag_{colour[0]}"].to_numpy(dtype=float) - table[f"absmag_{colour[1]}"].to_numpy(dtype=float)
-        y = table[f"absmag_{band}"].to_numpy(dtype=float)
-        mass = table["mass_msun"].to_numpy(dtype=float) if "mass_msun" in table else np.full(x.shape, np.nan)
+        x = _values(table, f"absmag_{colour[0]}") - _values(table, f"absmag_{colour[1]}")
+        y = _values(table, f"absmag_{band}")
+        mass = _values(table, "mass_msun")
         ok = np.isfinite(x) & np.isfinite(y)
         cmap = LinearSegmentedColormap.from_list("cinder", [AMBER, BRICK, PLUM, INK])
         has_mass = ok & np.isfinite(mass)
@@ -198,7 +203,7 @@ def mass_distribution(table, stem, bin_width=0.02):
     plt = _plt()
     with plt.rc_context(_RC):
         fig, ax = plt.subplots(figsize=(6.4, 4.2))
-        m = table["mass_msun"].to_numpy(dtype=float)
+        m = _values(table, "mass_msun")
         ok = np.isfinite(m)
         bins = np.arange(0.2, 1.42 + 1e-9, bin_width)
         if ok.any():

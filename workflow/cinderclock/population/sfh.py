@@ -88,6 +88,48 @@ class StarFormationHistory:
         return d
 
 
+@dataclass(frozen=True)
+class PiecewiseHistory:
+    """A rate that is constant within each lookback bin (for simulations and the inferred history).
+
+    Parameters
+    ----------
+    edges_gyr : tuple of float
+        Ascending lookback-time edges (Gyr), the first at 0 or later.
+    rates : tuple of float
+        Rate in each bin (any units; star formation stops beyond the last edge).
+    """
+
+    edges_gyr: tuple
+    rates: tuple
+
+    def __post_init__(self):
+        e = np.asarray(self.edges_gyr, dtype=float)
+        if e.ndim != 1 or e.size != len(self.rates) + 1 or np.any(np.diff(e) <= 0) or e[0] < 0:
+            raise ConfigError("a piecewise history needs ascending edges, one more than rates")
+        if np.any(np.asarray(self.rates, dtype=float) < 0):
+            raise ConfigError("a piecewise history needs non-negative rates")
+
+    def cumulative(self, tau_gyr, age_gyr=None):
+        """Stars formed between now and lookback ``tau_gyr`` (``age_gyr`` only broadcasts: the
+        history ends at its last edge)."""
+        e = np.asarray(self.edges_gyr, dtype=float)
+        cum = np.concatenate([[0.0], np.cumsum(np.asarray(self.rates, dtype=float) * np.diff(e))])
+        tau = np.asarray(tau_gyr, dtype=float)
+        out = np.interp(np.clip(tau, 0.0, None), e, cum, left=0.0, right=cum[-1])
+        out = np.where(np.isposinf(tau), cum[-1], out)
+        if age_gyr is not None:
+            out = np.broadcast_to(out, np.broadcast_shapes(out.shape, np.shape(age_gyr)))
+        return out
+
+    def total(self, age_gyr=None):
+        return self.cumulative(np.inf, age_gyr)
+
+    def as_model(self):
+        return {"name": "sfh_piecewise", "reference": "piecewise-constant star-formation history",
+                "edges_gyr": [float(x) for x in self.edges_gyr], "rates": [float(x) for x in self.rates]}
+
+
 def sfh_from_settings(sfh):
     """:class:`StarFormationHistory` from the ``population.sfh`` configuration section."""
     burst = sfh.get("burst") or {}

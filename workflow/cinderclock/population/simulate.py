@@ -39,8 +39,8 @@ def simulate_white_dwarfs(rng, n_formed, age_gyr, log_lum_at_age, ifmr="cummings
     Returns
     -------
     dict of ndarray
-        ``initial_mass_msun``, ``mass_msun``, ``cool_age_gyr``, ``log_lum``, ``mbol`` of the stars
-        that are white dwarfs today.
+        ``initial_mass_msun``, ``mass_msun``, ``cool_age_gyr``, ``total_age_gyr`` (lookback time of
+        formation), ``log_lum``, ``mbol`` of the stars that are white dwarfs today.
     """
     from ..progenitor.ifmr import get_ifmr
     from ..progenitor.lifetimes import get_lifetime
@@ -58,8 +58,8 @@ def simulate_white_dwarfs(rng, n_formed, age_gyr, log_lum_at_age, ifmr="cummings
     mi, t_cool = mi[wd], (tau - t_prog)[wd]
     mf = rel.final_mass(mi)[0]
     logl = np.asarray(log_lum_at_age(mf, t_cool * 1e9), dtype=float)
-    return {"initial_mass_msun": mi, "mass_msun": mf, "cool_age_gyr": t_cool, "log_lum": logl,
-            "mbol": mbol_sun() - 2.5 * logl}
+    return {"initial_mass_msun": mi, "mass_msun": mf, "cool_age_gyr": t_cool, "total_age_gyr": tau[wd],
+            "log_lum": logl, "mbol": mbol_sun() - 2.5 * logl}
 
 
 def place_in_sphere(rng, n, radius_pc, scale_height_pc=None):
@@ -85,3 +85,50 @@ def place_in_sphere(rng, n, radius_pc, scale_height_pc=None):
         s_out.append(s)
         have += d.size
     return np.concatenate(d_out)[:n], np.concatenate(s_out)[:n]
+
+
+def observe_sample(rng, wd, radius_pc, mag_limit, plx_err_mas=0.0, mag_err=0.0, min_parallax_over_error=None,
+                   distance_limit_pc=None):
+    """A measured, magnitude-limited sample of simulated white dwarfs (survey band = bolometric, BC = 0).
+
+    Each star is placed uniformly in a sphere of ``radius_pc``; its parallax and apparent magnitude
+    are measured with normal errors ``plx_err_mas`` and ``mag_err``; stars are kept by the measured
+    magnitude (``< mag_limit``), the parallax S/N (``>= min_parallax_over_error``, if given) and the
+    measured distance (``<= distance_limit_pc``, default ``radius_pc``). The absolute magnitude is
+    the measured one, M = m - 5 log10(d / 10 pc) with d = 1000 / parallax, and its standard error
+    the first-order sum of both errors, sqrt(sigma_m^2 + (5 / ln 10 * sigma_plx / plx)^2).
+
+    Parameters
+    ----------
+    rng : numpy.random.Generator
+    wd : dict of ndarray
+        Output of :func:`simulate_white_dwarfs`.
+
+    Returns
+    -------
+    dict of ndarray
+        ``mbol`` (measured), ``mbol_err``, ``mbol_true``, ``mag``, ``dist_pc`` (measured), ``plx_mas``,
+        ``plx_err_mas``, ``mass_msun``, ``cool_age_gyr``, ``total_age_gyr`` (cooling + progenitor
+        lifetime, the true lookback time of formation), ``index`` (row in ``wd``).
+    """
+    n = wd["mbol"].size
+    d, _ = place_in_sphere(rng, n, radius_pc)
+    plx_true = 1000.0 / d
+    plx = plx_true + float(plx_err_mas) * rng.standard_normal(n)
+    mag = wd["mbol"] + 5.0 * np.log10(d / 10.0) + float(mag_err) * rng.standard_normal(n)
+    keep = (mag < mag_limit) & (plx > 0)
+    if min_parallax_over_error is not None and plx_err_mas > 0:
+        keep &= plx / plx_err_mas >= min_parallax_over_error
+    with np.errstate(divide="ignore", invalid="ignore"):
+        d_obs = np.where(plx > 0, 1000.0 / plx, np.nan)
+    keep &= d_obs <= (radius_pc if distance_limit_pc is None else distance_limit_pc)
+    idx = np.flatnonzero(keep)
+    d_obs = d_obs[idx]
+    mbol = mag[idx] - 5.0 * np.log10(d_obs / 10.0)
+    err = np.sqrt(float(mag_err) ** 2 + (5.0 / np.log(10.0) * float(plx_err_mas) / plx[idx]) ** 2)
+    out = {"mbol": mbol, "mbol_err": err, "mbol_true": wd["mbol"][idx], "mag": mag[idx], "dist_pc": d_obs,
+           "plx_mas": plx[idx], "plx_err_mas": np.full(idx.size, float(plx_err_mas)), "index": idx}
+    for key in ("mass_msun", "cool_age_gyr", "total_age_gyr"):
+        if key in wd:
+            out[key] = wd[key][idx]
+    return out

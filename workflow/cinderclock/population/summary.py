@@ -16,6 +16,7 @@ th, td { border: 1px solid #c9d6df; padding: 0.25em 0.7em; text-align: left; ver
 th { background: #eef3f6; }
 td.num { text-align: right; font-variant-numeric: tabular-nums; }
 .caution { background: #fbf3e6; border-left: 4px solid #e09f3e; padding: 0.4em 0.8em; margin: 0.4em 0; }
+.warning { background: #f8e8e8; border-left: 4px solid #9e2a2b; padding: 0.4em 0.8em; margin: 0.4em 0; }
 pre { background: #f4f6f8; border: 1px solid #c9d6df; padding: 0.8em; font-size: 0.85em; overflow-x: auto; }
 """
 
@@ -104,7 +105,58 @@ def _fmt(v, digits=3):
     return v
 
 
-def render(counts, provenance, config, lf_summary, fit_summary, title="cinderclock run summary"):
+def _warnings_html(warnings):
+    return [f"<div class='warning'><b>warning {_e(w['code'])}</b>: {_e(w['message'])}</div>" for w in warnings or []]
+
+
+def _goodness_rows(g):
+    if not g:
+        return []
+    return [("Poisson deviance / degrees of freedom (floored model, as in the likelihood)",
+             f"{_fmt(g.get('deviance'))} / {g.get('dof')}"),
+            ("goodness-of-fit p-value (parametric bootstrap, {} simulated samples)".format(g.get("simulations")),
+             _fmt(g.get("p_value"))),
+            ("p-value, chi-square approximation", _fmt(g.get("p_value_chi2")))]
+
+
+def _sfh_html(sfh_summary):
+    """The star-formation-history section."""
+    parts = ["<h2>Star-formation history</h2>"]
+    if not sfh_summary:
+        return parts + ["<p>No star-formation history in this run.</p>"]
+    if not sfh_summary.get("fitted"):
+        return parts + [f"<p>{_e(sfh_summary.get('not_fitted', 'not fitted'))}.</p>"]
+    unit = sfh_summary.get("rate_unit", "")
+    edges = sfh_summary["lookback_edges_gyr"]
+    for method in sfh_summary.get("methods", []):
+        f = sfh_summary[method]
+        label = {"luminosity_function": "From the luminosity function (Poisson likelihood, smoothness prior of "
+                                        f"{f.get('smoothing_dex')} dex between bins; posterior by importance "
+                                        f"sampling, {f.get('effective_samples', 0):.0f} effective of "
+                                        f"{f.get('draws')} draws)",
+                 "total_ages": "From the per-star total ages (bootstrap over stars; "
+                               f"{f.get('stars_used')} stars)"}.get(method, method)
+        parts.append(f"<p>{_e(label)}. Rates in {_e(unit)} ({_e(sfh_summary.get('rate_meaning', ''))}).</p>")
+        corr = f.get("correlation") or []
+        rows = []
+        for b in range(len(edges) - 1):
+            nxt = corr[b][b + 1] if b + 1 < len(corr) else None
+            rows.append((f"{edges[b]:g} - {edges[b + 1]:g}", _fmt(f["rate_p50"][b], 3), _fmt(f["rate_p16"][b], 3),
+                         _fmt(f["rate_p84"][b], 3), _fmt(f["rate_sd"][b], 3),
+                         "" if nxt is None else f"{nxt:+.2f}"))
+        parts.append(_table(["lookback (Gyr)", "median", "16 %", "84 %", "sd", "correlation with the next bin"], rows,
+                            numeric=(1, 2, 3, 4, 5)))
+    const = sfh_summary.get("constant_rate")
+    if const:
+        parts.append(f"<p>For comparison, a constant rate back to the fitted age {const['age_gyr']:.2f} Gyr: "
+                     f"{_fmt(const['rate'])} {_e(unit)}.</p>")
+    parts += _warnings_html(sfh_summary.get("warnings"))
+    parts += [f"<div class='caution'>{_e(c)}</div>" for c in sfh_summary.get("cautions", [])]
+    return parts
+
+
+def render(counts, provenance, config, lf_summary, fit_summary, sfh_summary=None, draws_summary=None,
+           title="cinderclock run summary"):
     """HTML text of the run summary.
 
     Parameters
@@ -117,6 +169,8 @@ def render(counts, provenance, config, lf_summary, fit_summary, title="cinderclo
         The validated configuration.
     lf_summary, fit_summary : dict
         Summaries written by the luminosity-function and population-age rules.
+    sfh_summary, draws_summary : dict, optional
+        Summaries of the star-formation-history and posterior-draws rules.
     """
     import yaml
 
@@ -147,6 +201,8 @@ def render(counts, provenance, config, lf_summary, fit_summary, title="cinderclo
         parts.append(_table(["stage", "reason", "rows", "meaning"], rows, numeric=(2,)))
 
     parts.append("<h2>Luminosity function</h2>")
+    if lf_summary.get("empty"):
+        parts.append(f"<div class='warning'>{_e(lf_summary['empty'])}.</div>")
     st = lf_summary.get("status_counts", {})
     parts.append(_table(["stars", "number"], [(k.replace("_", " "), v) for k, v in st.items()], numeric=(1,)))
     vv = lf_summary.get("v_over_vmax", {})
@@ -169,20 +225,36 @@ def render(counts, provenance, config, lf_summary, fit_summary, title="cinderclo
                 ("95 % bootstrap interval (Gyr)", _pair(fit_summary.get("interval95_gyr"))),
                 ("profile-likelihood interval, delta ln L = 0.5 (Gyr)",
                  _pair(fit_summary.get("likelihood_interval_gyr"))),
+                ("profile-likelihood interval, delta ln L = 1.92 (Gyr)",
+                 _pair(fit_summary.get("likelihood_interval95_gyr"))),
+                ("modes of the bootstrap ages", fit_summary.get("bootstrap_modes")),
                 ("bootstrap resamples", fit_summary.get("bootstrap_resamples")),
                 ("stars in the fitted range", fit_summary.get("n_stars_in_fit")),
                 ("fitted M_bol range (mag)", f"{edges[0]:g} - {edges[-1]:g}" if edges else ""),
-                ("Poisson deviance / degrees of freedom", f"{_fmt(fit_summary.get('deviance'))} / "
-                                                         f"{fit_summary.get('dof')}"),
+                *_goodness_rows(fit_summary.get("goodness_of_fit")),
+                ("M_bol errors folded into the model", "yes" if fit_summary.get("measurement_errors_folded") else "no"),
                 ("progenitor birth rate (pc^-3 Gyr^-1)", _fmt(fit_summary.get("amplitude_per_pc3_per_gyr"))),
                 ("white-dwarf density of the model (pc^-3)", _fmt(fit_summary.get("white_dwarf_density_pc3"))),
                 ("star-formation history", fit_summary.get("sfh", {}).get("name")),
                 ("cooling model", fit_summary.get("cooling_model"))]
         parts.append(_table(["quantity", "value"], rows))
+        warns = fit_summary.get("warnings") or []
+        parts.append(f"<p>Warnings: {len(warns)}" + (" (none raised)." if not warns else ":") + "</p>")
+        parts += _warnings_html(warns)
+        if fit_summary.get("interval_coverage"):
+            parts.append(f"<div class='caution'><b>Interval coverage.</b> {_e(fit_summary['interval_coverage'])}</div>")
         for c in fit_summary.get("cautions", []):
             parts.append(f"<div class='caution'>{_e(c)}</div>")
     else:
         parts.append("<p>No population-age fit in this run.</p>")
+
+    parts += _sfh_html(sfh_summary)
+    if draws_summary:
+        parts.append("<h2>Posterior draws</h2>")
+        parts.append(f"<p><code>{_e(draws_summary.get('path'))}</code>: {draws_summary.get('rows')} rows, "
+                     f"{draws_summary.get('stars')} stars, every {draws_summary.get('thin')}-th of "
+                     f"{draws_summary.get('draws_per_star')} Monte Carlo draws per star; columns described in "
+                     "posterior_draws.md.</p>")
 
     parts.append("<h2>Models and references</h2>")
     entries = collect_models(provenance, (fit_summary or {}).get("models", []))
