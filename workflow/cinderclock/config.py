@@ -30,6 +30,15 @@ STAGE_SECTIONS = {
 }
 
 
+def __getattr__(name):
+    # SCHEMA_PATH, found when asked for (a missing schema must not break `import cinderclock.config`)
+    if name == "SCHEMA_PATH":
+        from .resources import locate
+
+        return locate("schema")
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+
+
 def load_schema():
     """The configuration schema (JSON Schema as YAML) of this installation."""
     import yaml
@@ -220,5 +229,9 @@ def check_config(config):
         raise SystemExit(1) from None
     except ResourceError as exc:
         sys.stderr.write(f"cinderclock: error: {exc}\n")
+        raise SystemExit(1) from None
+    except FileNotFoundError as exc:           # a data file of the package itself
+        sys.stderr.write(f"cinderclock: error: cannot find {exc.filename}, a file of the installed package; "
+                         "reinstall cinderclock\n")
         raise SystemExit(1) from None
     return config
