@@ -1,8 +1,13 @@
 # cinderclock: survey catalogue of white-dwarf candidates -> vetted parameters and ages.
-# Run from the repository root:  snakemake --cores 2   (see README.md)
+# Run from the repository root:  snakemake --cores 2   (see README.md). The same file is the
+# installed workflow that a project folder uses as a Snakemake module (cinderclock init).
 from cinderclock.config import check_config
 
-configfile: "config/config.yaml"
+# The invented sample's configuration, unless a configuration of one's own is named
+# (snakemake --configfile mine.yaml): that file then stands alone, with defaults from the schema,
+# and nothing of the sample's. As a module, the project folder passes its own config instead.
+if not workflow.overwrite_configfiles:
+    configfile: "config/config.yaml"
 check_config(config)  # JSON Schema validation with defaults (workflow/schemas/config.schema.yaml)
 
 report: "workflow/report/workflow.rst"

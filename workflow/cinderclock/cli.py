@@ -1,7 +1,11 @@
-"""The ``cinderclock`` command: look into, export, document and cite the tables a run wrote.
+"""The ``cinderclock`` command: start a project folder; look into, export, document and cite the
+tables a run wrote.
 
 ::
 
+    cinderclock init DIR [--with-sample]       # a project folder using the installed workflow
+    cinderclock defaults                       # every configuration key and its default (schema)
+    cinderclock path [NAME]                    # where the installed workflow's files are
     cinderclock inspect results/final/white_dwarfs.parquet          # provenance and columns
     cinderclock inspect results/final/white_dwarfs.parquet --json   # the whole metadata block
     cinderclock export results/final/white_dwarfs.parquet --format votable [-o OUT] [--overwrite]
@@ -140,13 +144,56 @@ def cmd_cite(args):
     return 0
 
 
-def build_parser():
-    from . import __version__
+def cmd_init(args):
+    from .project import init_project
 
-    p = argparse.ArgumentParser(prog="cinderclock", description="Look into, export, document and cite the tables "
-                                "a cinderclock run wrote.")
-    p.add_argument("--version", action="version", version=f"cinderclock {__version__}")
+    written = init_project(args.folder, with_sample=args.with_sample)
+    for path in written:
+        print(f"wrote {path}")
+    todo = "" if args.with_sample else " after filling in the FILL IN keys of config/config.yaml"
+    print(f"next: cd {args.folder} && snakemake --cores 2{todo}")
+    return 0
+
+
+def cmd_defaults(args):
+    from .project import defaults_listing
+
+    print("\n".join(defaults_listing()))
+    return 0
+
+
+def cmd_path(args):
+    from .resources import RESOURCES, locate
+
+    if args.name:
+        print(locate(args.name))
+        return 0
+    for name in RESOURCES:
+        print(f"{name:<17} {locate(name)}")
+    return 0
+
+
+def build_parser():
+    p = argparse.ArgumentParser(prog="cinderclock", description="Start a project folder; look into, export, "
+                                "document and cite the tables a cinderclock run wrote.")
+    p.add_argument("--version", action="version", version=f"cinderclock {_version()}")
     sub = p.add_subparsers(dest="command", required=True, metavar="COMMAND")
+
+    from .resources import RESOURCES
+
+    s = sub.add_parser("init", help="write a project folder (Snakefile using the installed workflow, commented "
+                       "configuration to fill in)")
+    s.add_argument("folder", help="the project folder (created if missing; existing files are never overwritten)")
+    s.add_argument("--with-sample", action="store_true", help="also copy the invented sample catalogue and its "
+                   "configuration, so the folder runs as it is")
+    s.set_defaults(func=cmd_init)
+
+    s = sub.add_parser("defaults", help="print every configuration key with its default (from the schema)")
+    s.set_defaults(func=cmd_defaults)
+
+    s = sub.add_parser("path", help="print where the installed workflow's files are")
+    s.add_argument("name", nargs="?", choices=list(RESOURCES), help="one resource (default: all)")
+    s.set_defaults(func=cmd_path)
 
     s = sub.add_parser("inspect", help="print the schema version, provenance and columns of a table")
     s.add_argument("file", help="a cinderclock table: Parquet, or a FITS/VOTable/ECSV export")
@@ -174,6 +221,12 @@ def build_parser():
     s.add_argument("--overwrite", action="store_true", help="replace an existing BibTeX file")
     s.set_defaults(func=cmd_cite)
     return p
+
+
+def _version():
+    from . import __version__
+
+    return __version__
 
 
 def main(argv=None):

@@ -1,7 +1,9 @@
 """Configuration: safe YAML loading, JSON-Schema validation with defaults, per-stage settings.
 
-The schema (``workflow/schemas/config.schema.yaml``) is the single reference for every key, its
-type, allowed values and default. :func:`stage_settings` cuts the configuration into the part each
+The schema (``workflow/schemas/config.schema.yaml``, found through :mod:`cinderclock.resources` in a
+checkout or in the installed package) is the single reference for every key, its type, allowed
+values and default: a configuration holds only what differs from it, and nothing is taken from the
+invented sample's configuration. :func:`stage_settings` cuts the configuration into the part each
 stage depends on: the workflow passes exactly that part as the rule's ``params``, so changing one
 stage's settings reruns only that stage and the stages after it.
 """
@@ -12,8 +14,6 @@ import copy
 from pathlib import Path
 
 from .errors import ConfigError
-
-SCHEMA_PATH = Path(__file__).resolve().parents[1] / "schemas" / "config.schema.yaml"
 
 #: stage -> top-level configuration sections it depends on
 STAGE_SECTIONS = {
@@ -31,20 +31,38 @@ STAGE_SECTIONS = {
 }
 
 
+def __getattr__(name):
+    # SCHEMA_PATH, found when asked for (a missing schema must not break `import cinderclock.config`)
+    if name == "SCHEMA_PATH":
+        from .resources import locate
+
+        return locate("schema")
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+
+
 def load_schema():
+    """The configuration schema (JSON Schema as YAML) of this installation."""
     import yaml
 
-    with open(SCHEMA_PATH) as fh:
+    from .resources import locate
+
+    with open(locate("schema")) as fh:
         return yaml.safe_load(fh)
 
 
 def _format_error(err):
+    import difflib
+
     path = ".".join(str(p) for p in err.absolute_path) or "(top level)"
     if err.validator == "additionalProperties":
         allowed = sorted(err.schema.get("properties", {}))
         extra = sorted(set(err.instance) - set(allowed))
-        return f"config key '{path + '.' if path != '(top level)' else ''}{extra[0]}' is not allowed; allowed keys " \
-               f"here: {', '.join(allowed)}"
+        key = f"{path}.{extra[0]}" if path != "(top level)" else extra[0]
+        close = difflib.get_close_matches(extra[0], allowed, n=1, cutoff=0.6)
+        hint = f" (did you mean '{close[0]}'?)" if close else ""
+        return f"config key '{key}' is not allowed{hint}; allowed keys here: {', '.join(allowed)}"
+    if err.validator == "type" and err.instance is None:
+        return f"config key '{path}' is not set (null); fill it in (expected {err.message.split(' is not of ')[-1]})"
     if err.validator == "enum":
         return f"config key '{path}': {err.instance!r} is not one of {', '.join(map(repr, err.validator_value))}"
     return f"config key '{path}': {err.message}"
@@ -71,13 +89,18 @@ def validate(config, schema=None):
         yield from base.VALIDATORS["properties"](validator, properties, instance, schema)
 
     filling = jsonschema.validators.extend(base, {"properties": set_defaults})
-    errors = sorted(filling(schema).iter_errors(config), key=lambda e: (len(list(e.absolute_path)), str(e.message)))
+    # An unexpected (misspelt) key comes first: it is usually why a required key looks missing.
+    errors = sorted(filling(schema).iter_errors(config),
+                    key=lambda e: (e.validator != "additionalProperties", len(list(e.absolute_path)), str(e.message)))
     if errors:
         raise ConfigError(_format_error(errors[0]))
     if isinstance(config.get("bands"), dict):
         from .photometry.systems import expand_bands
 
         expand_bands(config["bands"])
+    columns = (config.get("catalogue") or {}).get("columns") or {}
+    for quantity in [q for q, name in columns.items() if name is None]:
+        del columns[quantity]        # `teff_spec: null`: the catalogue has no such column
     return config
 
 
@@ -166,6 +189,7 @@ def check_references(config):
     allowed = ", ".join(bands)
     cmd = ((config.get("population") or {}).get("figures") or {}).get("cmd") or {}
     uses = [("population.figures.cmd.colour", b) for b in cmd.get("colour", [])]
+    uses.append(("population.survey.band", ((config.get("population") or {}).get("survey") or {}).get("band")))
     if cmd:
         uses.append(("population.figures.cmd.magnitude", cmd.get("magnitude")))
     sel = config.get("select", {}) or {}
@@ -188,6 +212,19 @@ def check_references(config):
                               f"it in catalogue.keep_columns (available: {', '.join(sorted(columns))})")
 
 
+def check_workflow_settings(config):
+    """Settings the workflow needs that a library call may leave out.
+
+    The survey's magnitude limit has no default (it belongs to the survey, not to cinderclock): the
+    luminosity function and the population age need it.
+    """
+    survey = ((config.get("population") or {}).get("survey") or {})
+    if survey.get("faint_mag_limit") is None:
+        raise ConfigError(f"config key 'population.survey.faint_mag_limit' is not set: give your survey's "
+                          f"apparent-magnitude limit in its selection band (population.survey.band: "
+                          f"{survey.get('band')!r}); the 1/Vmax luminosity function and the population age need it")
+
+
 def check_config(config):
     """Validate a configuration for the workflow; on a fault print one line and stop.
 
@@ -195,11 +232,21 @@ def check_config(config):
     """
     import sys
 
+    from .resources import ResourceError
+
     try:
         validate(config)
         check_results_dir(config)
         check_references(config)
+        check_workflow_settings(config)
     except ConfigError as exc:
         sys.stderr.write(f"cinderclock: configuration error: {exc}\n")
+        raise SystemExit(1) from None
+    except ResourceError as exc:
+        sys.stderr.write(f"cinderclock: error: {exc}\n")
+        raise SystemExit(1) from None
+    except FileNotFoundError as exc:           # a data file of the package itself
+        sys.stderr.write(f"cinderclock: error: cannot find {exc.filename}, a file of the installed package; "
+                         "reinstall cinderclock\n")
         raise SystemExit(1) from None
     return config
