@@ -63,6 +63,8 @@ def _format_error(err):
         return f"config key '{key}' is not allowed{hint}; allowed keys here: {', '.join(allowed)}"
     if err.validator == "type" and err.instance is None:
         return f"config key '{path}' is not set (null); fill it in (expected {err.message.split(' is not of ')[-1]})"
+    if err.validator in ("oneOf", "anyOf") and err.instance is None:
+        return f"config key '{path}' is not set (null); fill it in"
     if err.validator == "enum":
         return f"config key '{path}': {err.instance!r} is not one of {', '.join(map(repr, err.validator_value))}"
     return f"config key '{path}': {err.message}"
