@@ -1,7 +1,7 @@
 """Opacity of the envelope gas: Rosseland mean of published monochromatic forms, plus conduction.
 
 Radiative part, at each (T, rho) of the equation-of-state table, the Rosseland mean
-1/kappa_R = int (1/kappa_nu) dB/dT dnu / int dB/dT dnu over 160 frequencies (0.02 < h nu/kT < 40)
+1/kappa_R = int (1/kappa_nu) dB/dT dnu / int dB/dT dnu over 100 frequencies (0.02 < h nu/kT < 40)
 of the sum of
 
 * **bound-free** absorption of hydrogenic species from levels n = 1..8 (H I; He II with Z = 2):
@@ -48,7 +48,7 @@ SIGMA_T = 6.6524587e-25                 # Thomson cross-section, cm^2 (CODATA)
 RYDBERG_PER_A = 1.0 / 911.27            # R in Angstrom^-1 (infinite-mass Rydberg, 1/911.27 A)
 CHI_HMINUS_EV = 0.754
 _N_LEVELS = 8
-_U = np.geomspace(0.02, 40.0, 160)     # h nu / kT
+_U = np.geomspace(0.02, 40.0, 100)     # h nu / kT
 _WB = _U**4 * np.exp(_U) / np.expm1(_U) ** 2
 _WB_DU = _WB * np.gradient(_U)
 
