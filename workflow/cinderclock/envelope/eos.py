@@ -12,6 +12,9 @@ Pure hydrogen or pure helium (the layers of a white-dwarf envelope). Ingredients
   perturber (our simplification) and r_j the hydrogenic radius of the bound state,
   a_0 (13.6 eV / chi_j)^(1/2). The matching excluded-volume pressure -kT sum n_j ln w_j keeps the
   free energy consistent. w -> 0 above about 1 g cm^-3 (H) to 10 g cm^-3 (He): fully ionised.
+  Known limit: with strongly degenerate electrons the Saha factor e^-eta (eta ~ rho^(2/3) / T)
+  competes with ln w (~ rho); colder than ~1e5 K at 1e3 g cm^-3 the gas then stays He II /
+  H I. White-dwarf envelope paths do not go there (T > 3e5 K wherever rho > 1e2 g cm^-3).
 * **Electrons**: :func:`cinderclock.envelope.fermi.electron_gas` (Fermi-Dirac, relativistic at
   T = 0).
 * **Coulomb** (ion-ion, rigid electron background): internal energy u = U / (N kT) interpolating
