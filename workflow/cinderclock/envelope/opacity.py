@@ -40,7 +40,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..constants import SIGMA_SB_SI
-from .eos import BOHR_CM, CHI_H_EV, E2, EV, H_PLANCK, M_U
+from .eos import BOHR_CM, CHI_H_EV, E2, EV, H_PLANCK
 from .fermi import C_LIGHT, HBAR, K_B, M_E
 
 SIGMA_SB = SIGMA_SB_SI * 1e3

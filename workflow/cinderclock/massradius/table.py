@@ -146,15 +146,7 @@ def build_mass_radius_table(core="CO", hydrogen_layer="thick", coulomb=True, mas
 
     comp = core_composition(core)
     layer = _lookup_layer(hydrogen_layer)
-    masses = np.asarray(DEFAULT_MASS_GRID if mass_grid is None else mass_grid, dtype=float)
-    teffs = np.asarray(DEFAULT_TEFF_GRID if teff_grid is None else teff_grid, dtype=float)
-    for name, arr in (("mass_grid", masses), ("teff_grid", teffs)):
-        if arr.ndim != 1 or arr.size < 2 or np.any(np.diff(arr) <= 0) or not np.all(np.isfinite(arr)):
-            raise ValueError(f"{name} must be a strictly increasing 1-d array of at least two finite values")
-    # never tabulate outside the stated ranges of the models used (raises ModelRangeError)
-    CHANDRASEKHAR_1939.check(strict=True, mass=masses)
-    MESTEL_KRAMERS_ENVELOPE.check(strict=True, mass=masses)
-    MESTEL_KRAMERS_ENVELOPE.check(strict=True, teff=teffs)
+    masses, teffs = _grids(mass_grid, teff_grid)
     ion_charge = comp.coulomb_charge if coulomb else None
     radius0 = _zero_t_radius_function(comp.mu_e, ion_charge, coulomb)(masses)
     if np.any(~np.isfinite(radius0)):
@@ -203,6 +195,7 @@ def build_mass_radius_table(core="CO", hydrogen_layer="thick", coulomb=True, mas
 
 
 def _grids(mass_grid, teff_grid):
+    """Validated mass and Teff grids; never outside the stated model ranges (ModelRangeError)."""
     masses = np.asarray(DEFAULT_MASS_GRID if mass_grid is None else mass_grid, dtype=float)
     teffs = np.asarray(DEFAULT_TEFF_GRID if teff_grid is None else teff_grid, dtype=float)
     for name, arr in (("mass_grid", masses), ("teff_grid", teffs)):
