@@ -16,7 +16,7 @@ from cinderclock.cooling.mestel import envelope_constant_cgs
 from cinderclock.massradius import flags, nauenberg
 from cinderclock.massradius.composition import CORE_COMPOSITIONS
 from cinderclock.massradius.envelope import finite_temperature_radius
-from cinderclock.massradius.table import (TABLE_COLUMNS, MassRadiusGrid, _zero_t_radius_function,
+from cinderclock.massradius.table import (COLUMNS_BY_ENVELOPE, MassRadiusGrid, _zero_t_radius_function,
                                           build_mass_radius_table)
 
 CO = CORE_COMPOSITIONS["CO"]
@@ -29,12 +29,23 @@ def r0_co():
 
 @pytest.fixture(scope="module")
 def thick():
+    """Default table: integrated envelope (cinderclock.envelope), thick hydrogen layer."""
     return build_mass_radius_table("CO", "thick", coulomb=True)
+
+
+@pytest.fixture(scope="module")
+def kramers_thick():
+    return build_mass_radius_table("CO", "thick", coulomb=True, envelope="kramers")
 
 
 @pytest.fixture(scope="module")
 def grid(thick):
     return MassRadiusGrid.from_frame(thick)
+
+
+@pytest.fixture(scope="module")
+def kramers_grid(kramers_thick):
+    return MassRadiusGrid.from_frame(kramers_thick)
 
 
 # ---------------------------------------------------------------- envelope physics --------------
@@ -55,11 +66,13 @@ def test_hot_star_larger_and_converges_as_it_cools(r0_co, hydrogen, mass):
     assert excess[0] < 2e-3
 
 
-def test_thick_hydrogen_layer_is_larger(thick):
-    """Hydrogen (mu = 0.5) is lighter than the helium-rich gas below (mu = 1.4), so a thick layer
-    gives a thicker envelope (hydrostatic scale height ~ kT / (mu m_u g); common practice: thick-H
-    models are larger than thin-H ones at the same mass and Teff)."""
-    thin = build_mass_radius_table("CO", "thin", coulomb=True)
+def test_thick_hydrogen_layer_is_larger(kramers_thick):
+    """Kramers envelope (explicit choice). Hydrogen (mu = 0.5) is lighter than the helium-rich gas
+    below (mu = 1.4), so a thick layer gives a thicker envelope (hydrostatic scale height
+    ~ kT / (mu m_u g); common practice: thick-H models are larger than thin-H ones at the same mass
+    and Teff)."""
+    thick = kramers_thick
+    thin = build_mass_radius_table("CO", "thin", coulomb=True, envelope="kramers")
     ok = np.isfinite(thick["radius_rsun"]) & np.isfinite(thin["radius_rsun"])
     assert ok.sum() > 10000
     assert np.all(thick["radius_rsun"][ok] >= thin["radius_rsun"][ok])
@@ -104,13 +117,13 @@ def test_table_layout_and_parquet(thick):
     tableio, JSON-ready settings and model references, and survives a Parquet round trip."""
     import json
 
-    assert list(thick.columns) == list(TABLE_COLUMNS)
+    assert list(thick.columns) == list(COLUMNS_BY_ENVELOPE["integrated"])
     assert all(dt == np.float64 for dt in thick.dtypes)
     n_m, n_t = thick["mass_msun"].nunique(), thick["teff_k"].nunique()
     assert len(thick) == n_m * n_t
     json.dumps(thick.attrs)
     assert {m["name"] for m in thick.attrs["models"]} >= {"chandrasekhar1939", "salpeter1961",
-                                                          "mestel_kramers_envelope"}
+                                                          "integrated_envelope_H"}
     assert all(m["reference"] for m in thick.attrs["models"])
     buf = io.BytesIO()
     thick.to_parquet(buf)
@@ -155,9 +168,10 @@ def test_round_trip_mass_logg_mass(grid):
     np.testing.assert_allclose(logg2, g, atol=1e-4)
 
 
-def test_table_matches_direct_model(grid, r0_co):
-    """Internal check: the interpolated radius at off-grid points agrees with the envelope model
-    evaluated directly, to 5e-4 relative (grid spacing 0.005 Msun and 0.014 dex in Teff)."""
+def test_table_matches_direct_model(kramers_grid, r0_co):
+    """Internal check (Kramers choice): the interpolated radius at off-grid points agrees with the
+    envelope model evaluated directly, to 5e-4 relative (grid spacing 0.005 Msun and 0.014 dex in Teff)."""
+    grid = kramers_grid
     rng = np.random.default_rng(3)
     m = rng.uniform(0.5, 1.3, 500)
     t = np.exp(rng.uniform(np.log(3000.0), np.log(60000.0), 500))
@@ -191,13 +205,16 @@ def test_solve_prefers_logg_then_photometric_radius(grid):
 
 def test_table_refuses_grids_outside_model_ranges():
     """Valid ranges are data and checked: no table beyond the Newtonian T = 0 model's mass range
-    or the envelope model's Teff range."""
+    or the envelope model's Teff range (both envelope choices)."""
     from cinderclock.errors import ModelRangeError
 
-    with pytest.raises(ModelRangeError):
-        build_mass_radius_table("CO", "thick", True, np.array([0.6, 1.40]), np.array([5000.0, 9000.0]))
-    with pytest.raises(ModelRangeError):
-        build_mass_radius_table("CO", "thick", True, np.array([0.6, 0.7]), np.array([5000.0, 300000.0]))
+    for env in ("integrated", "kramers"):
+        with pytest.raises(ModelRangeError):
+            build_mass_radius_table("CO", "thick", True, np.array([0.6, 1.40]), np.array([5000.0, 9000.0]),
+                                    envelope=env)
+        with pytest.raises(ModelRangeError):
+            build_mass_radius_table("CO", "thick", True, np.array([0.6, 0.7]), np.array([5000.0, 300000.0]),
+                                    envelope=env)
 
 
 def test_mass_flags():
@@ -221,13 +238,9 @@ def test_core_trend_at_finite_temperature():
     assert np.all(r["He"] > r["CO"]) and np.all(r["CO"] > r["ONe"])
 
 
-def test_regular_inverse_agrees_with_the_exact_inversion():
+def test_regular_inverse_agrees_with_the_exact_inversion(grid):
     # internal check: the resampled inversion used for Monte Carlo draws stays within 1e-4 Msun of
     # the exact one wherever both give a mass, and gives a mass almost everywhere the exact one does
-    from cinderclock.massradius.grid import MassRadiusGrid
-    from cinderclock.massradius.table import build_mass_radius_table
-
-    grid = MassRadiusGrid.from_frame(build_mass_radius_table())
     rng = np.random.default_rng(3)
     teff = np.exp(rng.uniform(np.log(4000.0), np.log(80000.0), 20000))
     mass = rng.uniform(0.4, 1.2, teff.size)

@@ -1,0 +1,120 @@
+"""Solve the envelope of every (mass, Teff) of a grid at once: photospheric radius by secant iteration.
+
+For each star the photospheric radius R is adjusted until the envelope integrated inward from the
+photosphere (:func:`~cinderclock.envelope.structure.integrate`) reaches the base of the helium
+layer, Dm = q_He M, at the radius that the zero-temperature core (Chandrasekhar equation with the
+Salpeter Coulomb term, :func:`cinderclock.massradius.chandrasekhar.structure_profile`) has at
+mass coordinate (1 - q_He) M. One fixed-point step and then secant steps, all vectorised over the
+grid; stars that do not converge, or whose envelope cannot be bound (hot, low-mass stars whose
+radius runs away), are NaN.
+"""
+
+from __future__ import annotations
+
+from functools import lru_cache
+
+import numpy as np
+
+from ..constants import L_SUN_W, M_SUN_KG, R_SUN_M
+from .opacity import SIGMA_SB
+from .structure import G, Lookup, integrate, layer_stack
+
+M_SUN_G = M_SUN_KG * 1e3
+R_SUN_CM = R_SUN_M * 1e2
+#: Masses (Msun) at which the zero-temperature core profile is integrated; in between, the
+#: radius ratio r(1 - q_He) / R_0 is interpolated by a cubic spline in ln M (R_0 itself comes
+#: from a dense zero-temperature sequence).
+CORE_NODES_MSUN = (0.10, 0.25, 0.45, 0.7, 0.95, 1.15, 1.28, 1.36)
+N_ITERATIONS = 6
+#: Target |r_base - r_core| / R of the iteration, and the largest residual accepted in a table.
+TOLERANCE = 1e-5
+ACCEPT = 3e-3
+
+
+def core_radii(masses_msun, q_he, core):
+    """Zero-temperature total radius R_0 and radius at mass coordinate (1 - q_He) M, in Rsun."""
+    s0, sr = _core_splines(float(q_he), core)
+    m = np.asarray(masses_msun, dtype=float)
+    ok = (m >= CORE_NODES_MSUN[0]) & (m <= CORE_NODES_MSUN[-1])
+    lm = np.log(np.where(ok, m, 1.0))
+    big_r0 = np.where(ok, np.exp(s0(lm)), np.nan)
+    return big_r0, big_r0 * sr(lm)
+
+
+@lru_cache(maxsize=8)
+def _core_splines(q_he, core):
+    """Splines in ln M of ln R_0 (dense zero-temperature sequence) and of r(1 - q_He) / R_0 (profiles)."""
+    from scipy.interpolate import CubicSpline
+
+    from ..composition import core_composition
+    from ..massradius.chandrasekhar import structure_profile, zero_temperature_sequence
+
+    comp = core_composition(core)
+    seq = zero_temperature_sequence(comp.mu_e, comp.coulomb_charge, True, np.linspace(2.5, 11.5, 361))
+    s0 = CubicSpline(np.log(seq["mass_msun"]), np.log(seq["radius_rsun"]))
+    nodes = np.array(CORE_NODES_MSUN)
+    ratio = []
+    for m in nodes:                                   # loop over a few core models, not over stars
+        p = structure_profile(float(m), comp.mu_e, comp.coulomb_charge, coulomb=True, n_points=600)
+        ratio.append(np.interp(1.0 - q_he, p["mass_fraction"], p["radius_rsun"]) / p["total_radius_rsun"])
+    return s0, CubicSpline(np.log(nodes), np.array(ratio))
+
+
+def solve_grid(masses_msun, teff_k, atmosphere="H", q_h=1e-4, q_he=1e-2, core="CO", alpha=1.0):
+    """Envelope solutions on the outer product of ``masses_msun`` and ``teff_k``.
+
+    Returns
+    -------
+    dict of (n_mass, n_teff) arrays: ``radius_rsun``, ``log_tc``, ``log_lum``, ``logg``,
+    ``radius_zero_t_rsun``, ``log_dm_conv``, ``eta_conv``, ``eta_base``, ``log_p_photosphere``,
+    ``residual`` (|r_base - r_core| / R at the last iteration).
+    """
+    masses = np.asarray(masses_msun, dtype=float)
+    teffs = np.asarray(teff_k, dtype=float)
+    if atmosphere == "H" and q_h > 0:
+        symbols, top = ("H", "He"), 0
+    else:
+        symbols, top, q_h = ("He",), 0, 0.0
+    lookup = Lookup(layer_stack(symbols))
+    r0, r_core = core_radii(masses, q_he, core)
+    m2, t2 = np.meshgrid(masses, teffs, indexing="ij")
+    r0_2 = np.broadcast_to(r0[:, None], m2.shape) * R_SUN_CM
+    rc_2 = np.broadcast_to(r_core[:, None], m2.shape) * R_SUN_CM
+    mass_g = m2 * M_SUN_G
+
+    def f(radius):
+        out = integrate(lookup, mass_g, radius, t2, q_h, q_he, alpha, top)
+        return out["r_base"] - rc_2, out
+
+    ra = r0_2.copy()
+    fa, out = f(ra)
+    rb = ra - fa
+    for it in range(N_ITERATIONS + 1):
+        fb, out = f(rb)
+        with np.errstate(invalid="ignore"):
+            rel = np.abs(fb) / rb
+            if it == N_ITERATIONS or np.mean(rel[np.isfinite(rel)] > TOLERANCE) < 0.01:
+                break
+            slope = (fb - fa) / (rb - ra)
+            slope = np.where(np.isfinite(slope) & (slope > 0.05), slope, 1.0)
+            step = np.clip(-fb / slope, -0.5 * rb, 0.5 * rb)
+        ra, fa = rb, fb
+        rb = rb + np.nan_to_num(step)
+    with np.errstate(invalid="ignore"):
+        resid = np.abs(fb) / rb
+        good = np.isfinite(resid) & (resid < ACCEPT) & (rb < 20.0 * r0_2)
+    nan = np.where(good, 1.0, np.nan)
+    radius_rsun = rb / R_SUN_CM * nan
+    lum = 4.0 * np.pi * rb**2 * SIGMA_SB * t2**4
+    return {
+        "radius_rsun": radius_rsun,
+        "log_tc": out["log_tc"] * nan,
+        "log_lum": np.log10(lum / (L_SUN_W * 1e7)) * nan,
+        "logg": np.log10(G * mass_g / rb**2) * nan,
+        "radius_zero_t_rsun": r0_2 / R_SUN_CM,
+        "log_dm_conv": out["log_dm_conv"] * nan,
+        "eta_conv": out["eta_conv"] * nan,
+        "eta_base": out["eta_base"] * nan,
+        "log_p_photosphere": out["log_p_photosphere"] * nan,
+        "residual": resid,
+    }

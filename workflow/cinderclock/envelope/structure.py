@@ -1,0 +1,184 @@
+"""Envelope structure: grey atmosphere, then the structure equations in ln P, vectorised over stars.
+
+Atmosphere (Eddington grey, T^4 = (3/4) Teff^4 (tau + 2/3)): dP/dtau = g / kappa(P, T(tau)) from
+tau = 1e-4 to the photosphere tau = 2/3 in ``N_ATMOSPHERE`` RK4 steps in ln tau. The grey law is
+poor below Teff ~ 5,000-6,000 K, where the atmosphere is convective and non-grey (Rohrmann et al.
+2012, A&A 546, A119): cool rows carry that caution.
+
+Interior (independent variable s = ln P, ``N_INTERIOR`` RK4 steps from the photosphere to beyond
+the base of the helium layer), with the mass above, Dm = M - m, as ln Dm:
+
+    dr / ds     = -P r^2 / (G m rho)
+    d ln Dm / ds = 4 pi r^4 P / (G m Dm)
+    d ln T / ds  = nabla   (radiative, or mixing-length where Schwarzschild says convective)
+
+with constant luminosity L = 4 pi R^2 sigma Teff^4 and nabla_rad = 3 kappa L P / (16 pi a c G m T^4).
+The layer (H or He) is chosen from Dm: hydrogen while Dm < q_H M. Every step works on arrays of
+all stars at once; the only Python loops are over integration steps.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from functools import lru_cache
+
+import numpy as np
+
+from ..constants import G_SI
+from .convection import temperature_gradient
+from .eos import A_RAD, LOG_P_GRID, LOG_T_GRID, eos_table
+from .fermi import C_LIGHT
+from .opacity import SIGMA_SB, opacity_grid
+
+G = G_SI * 1e3
+N_ATMOSPHERE = 30
+N_INTERIOR = 240
+TAU_TOP = 1e-4
+_FIELDS = ("log_rho", "nabla_ad", "log_cp", "delta", "log_kappa", "eta", "log_kappa_rad", "log_kappa_cond")
+_LN10 = np.log(10.0)
+
+
+@lru_cache(maxsize=2)
+def layer_stack(symbols):
+    """Stacked tables, shape (n_field, n_layer, n_T, n_P), of the layers ``symbols`` (top first)."""
+    out = []
+    for sym in symbols:
+        eos = eos_table(sym)
+        lk, lr, lc = opacity_grid(eos)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            fields = (eos.log_rho, eos.nabla_ad, np.log10(eos.cp), eos.delta, lk, eos.state["eta"], lr, lc)
+        out.append(np.stack(fields))
+    return np.stack(out, axis=1)
+
+
+@dataclass
+class Lookup:
+    """Bilinear interpolation in the stacked (log T, log P) tables."""
+
+    stack: np.ndarray
+
+    def __call__(self, log_t, log_p, layer, n_fields=None):
+        x = (log_t - LOG_T_GRID[0]) / (LOG_T_GRID[1] - LOG_T_GRID[0])
+        y = (log_p - LOG_P_GRID[0]) / (LOG_P_GRID[1] - LOG_P_GRID[0])
+        bad = ~((x >= 0) & (x <= LOG_T_GRID.size - 1) & (y >= 0) & (y <= LOG_P_GRID.size - 1))
+        i = np.clip(np.floor(np.nan_to_num(x)).astype(int), 0, LOG_T_GRID.size - 2)
+        j = np.clip(np.floor(np.nan_to_num(y)).astype(int), 0, LOG_P_GRID.size - 2)
+        wx = np.clip(np.nan_to_num(x) - i, 0.0, 1.0)
+        wy = np.clip(np.nan_to_num(y) - j, 0.0, 1.0)
+        s = self.stack if n_fields is None else self.stack[:n_fields]
+        v = ((1 - wx) * (1 - wy) * s[:, layer, i, j] + wx * (1 - wy) * s[:, layer, i + 1, j]
+             + (1 - wx) * wy * s[:, layer, i, j + 1] + wx * wy * s[:, layer, i + 1, j + 1])
+        v[:, bad] = np.nan
+        return dict(zip(_FIELDS, v))
+
+
+def atmosphere(lookup, teff, logg, layer):
+    """ln P and ln T at the photosphere (tau = 2/3) of the grey atmosphere; arrays like ``teff``."""
+    g = 10.0**logg
+    lt = np.linspace(np.log(TAU_TOP), np.log(2.0 / 3.0), N_ATMOSPHERE + 1)
+
+    def temp(ln_tau):
+        return 0.25 * np.log(0.75 * teff**4 * (np.exp(ln_tau) + 2.0 / 3.0))
+
+    def rhs(ln_tau, ln_p):
+        ln_t = temp(ln_tau)
+        k = lookup(ln_t / _LN10, ln_p / _LN10, layer)["log_kappa"] * _LN10
+        return g * np.exp(ln_tau - k - ln_p)
+
+    ln_p = np.log(g * TAU_TOP / 1.0)
+    for _ in range(12):                      # damped fixed point P = g tau / kappa(P) at the top
+        k = lookup(temp(lt[0]) / _LN10, ln_p / _LN10, layer)["log_kappa"] * _LN10
+        ln_p = 0.5 * ln_p + 0.5 * (np.log(g * TAU_TOP) - np.nan_to_num(k, nan=0.0))
+    for a, b in zip(lt[:-1], lt[1:]):
+        h = b - a
+        k1 = rhs(a, ln_p)
+        k2 = rhs(a + h / 2, ln_p + h / 2 * k1)
+        k3 = rhs(a + h / 2, ln_p + h / 2 * k2)
+        k4 = rhs(b, ln_p + h * k3)
+        ln_p = ln_p + h / 6 * (k1 + 2 * k2 + 2 * k3 + k4)
+    return ln_p, temp(lt[-1])
+
+
+def integrate(lookup, mass_g, radius_cm, teff, q_h, q_he, alpha, top_layer, pressure_factor=30.0):
+    """Integrate the envelopes of all stars from the photosphere to past Dm = q_He M.
+
+    Parameters
+    ----------
+    lookup : Lookup
+    mass_g, radius_cm, teff : arrays of one shape
+        Mass (g), photospheric radius (cm) and Teff (K).
+    q_h, q_he : float
+        Hydrogen- and helium-layer mass fractions (q_h = 0: helium atmosphere).
+    alpha : float
+        Mixing-length parameter.
+    top_layer : int
+        Layer index of the top (0 for the first table of the stack).
+
+    Returns
+    -------
+    dict of arrays (values at Dm = q_He M): ``r_base`` (cm), ``log_tc`` (K), ``eta_base``, and
+    diagnostics ``log_dm_conv`` (log10 Dm/M at the deepest convective point, NaN if none),
+    ``eta_conv`` (degeneracy there), ``log_p_base``.
+    """
+    lum = 4.0 * np.pi * radius_cm**2 * SIGMA_SB * teff**4
+    logg = np.log10(G * mass_g / radius_cm**2)
+    ln_p0, ln_t0 = atmosphere(lookup, teff, logg, np.full(teff.shape, top_layer))
+    ln_p_end = np.log(pressure_factor * G * mass_g**2 * q_he / (4.0 * np.pi * radius_cm**4))
+    h = (ln_p_end - ln_p0) / N_INTERIOR
+    ln_dm_h = np.log(max(q_h, 1e-300) * mass_g)
+    ln_dm_he = np.log(q_he * mass_g)
+    he_layer = top_layer + 1 if q_h > 0 else top_layer
+
+    def rhs(ln_p, y, n_fields=5):
+        ln_t, r, ln_dm = y
+        layer = np.where(ln_dm < ln_dm_h, top_layer, he_layer) if q_h > 0 else np.full(ln_t.shape, top_layer)
+        v = lookup(ln_t / _LN10, ln_p / _LN10, layer, n_fields)
+        p = np.exp(ln_p)
+        t = np.exp(ln_t)
+        rho = 10.0 ** v["log_rho"]
+        kap = 10.0 ** v["log_kappa"]
+        m = mass_g - np.exp(ln_dm)
+        g_loc = G * m / r**2
+        nab_rad = 3.0 * kap * lum * p / (16.0 * np.pi * A_RAD * C_LIGHT * G * m * t**4)
+        hp = p / (rho * g_loc)
+        ell = alpha * hp
+        cp = 10.0 ** v["log_cp"]
+        with np.errstate(invalid="ignore", divide="ignore"):
+            u = 3.0 * A_RAD * C_LIGHT * t**3 / (cp * rho**2 * kap * ell**2) * np.sqrt(8.0 * hp / (g_loc * v["delta"]))
+        nab, conv = temperature_gradient(nab_rad, v["nabla_ad"], np.nan_to_num(u, nan=1e30))
+        dr = -p * r * r / (G * m * rho)
+        dlndm = 4.0 * np.pi * r**4 * p / (G * m * np.exp(ln_dm))
+        return np.stack([nab, dr, dlndm]), conv, v.get("eta")
+
+    y = np.stack([ln_t0, radius_cm.astype(float), np.log(4.0 * np.pi * radius_cm**4 * np.exp(ln_p0) / (G * mass_g))])
+    ln_p = ln_p0
+    hist = [np.concatenate([y, ln_p[None]])]
+    conv_dm = np.full(teff.shape, np.nan)
+    conv_eta = np.full(teff.shape, np.nan)
+    for _ in range(N_INTERIOR):
+        k1, conv, eta = rhs(ln_p, y, 6)
+        with np.errstate(invalid="ignore"):
+            deep_conv = conv & (y[2] < ln_dm_he)
+        conv_dm = np.where(deep_conv, y[2], conv_dm)
+        conv_eta = np.where(deep_conv, eta, conv_eta)
+        k2 = rhs(ln_p + h / 2, y + h / 2 * k1)[0]
+        k3 = rhs(ln_p + h / 2, y + h / 2 * k2)[0]
+        k4 = rhs(ln_p + h, y + h * k3)[0]
+        y = y + h / 6 * (k1 + 2 * k2 + 2 * k3 + k4)
+        ln_p = ln_p + h
+        hist.append(np.concatenate([y, ln_p[None]]))
+    hist = np.stack(hist)                                   # (n_step, 4, ...)
+    ln_dm = hist[:, 2]
+    with np.errstate(invalid="ignore"):
+        k = np.sum(ln_dm < ln_dm_he, axis=0)                # steps above the helium base
+    ok = (k > 0) & (k < hist.shape[0])
+    kk = np.clip(k, 1, hist.shape[0] - 1)
+    lo = np.take_along_axis(hist, (kk - 1)[None, None], axis=0)[0]
+    hi = np.take_along_axis(hist, kk[None, None], axis=0)[0]
+    w = (ln_dm_he - lo[2]) / (hi[2] - lo[2])
+    base = lo + w * (hi - lo)
+    eta_base = lookup(base[0] / _LN10, base[3] / _LN10, np.full(teff.shape, he_layer))["eta"]
+    nan = np.where(ok & np.all(np.isfinite(base), axis=0), 1.0, np.nan)
+    return {"r_base": base[1] * nan, "log_tc": base[0] / _LN10 * nan, "eta_base": eta_base * nan,
+            "log_p_base": base[3] / _LN10 * nan, "log_dm_conv": (conv_dm - np.log(mass_g)) / _LN10,
+            "eta_conv": conv_eta, "log_p_photosphere": ln_p0 / _LN10}
