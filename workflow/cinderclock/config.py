@@ -22,7 +22,7 @@ STAGE_SECTIONS = {
     "photometry_model": ("luminosity", "bands"),
     "luminosity": ("luminosity", "astrometry", "bands"),
     "envelope_model": ("envelope", "mass.core"),
-    "mass_radius_model": ("mass",),
+    "mass_radius_model": ("mass",),        # and the envelope table (an input file)
     "mass": ("mass",),
     "cooling_model": ("cooling",),
     "cooling": ("cooling", "progenitor"),

@@ -115,22 +115,49 @@ def build_envelope_table(settings):
 
     Returns ``(table, specs, models)``; read it back with :func:`load_envelope`.
     """
+    from ..envelope import TABLE_COLUMNS
     from ..envelope import build_envelope_table as build
 
     env = build(core=settings["mass"]["core"], **envelope_choice(settings["envelope"]))
-    table, specs = env.to_frame()
-    return table, specs, [env.as_model()]
+    frame = env.to_frame()
+    table = pd.DataFrame({c: frame[c].to_numpy() for c in frame.columns})
+    models = [env.as_model()]
+    settings_entry = dict(frame.attrs.get("settings", {}))
+    table.attrs["settings"] = settings_entry
+    return table, {c: TABLE_COLUMNS[c] for c in table.columns}, models
 
 
 def load_envelope(table_or_path):
     """:class:`cinderclock.envelope.EnvelopeTable` from its table (a frame or a Parquet path)."""
     from ..envelope import EnvelopeTable
 
+    settings = None
     if isinstance(table_or_path, (str, bytes)) or hasattr(table_or_path, "__fspath__"):
         from ..tableio import read_table
 
-        table_or_path = read_table(table_or_path)
-    return EnvelopeTable.from_frame(table_or_path)
+        table_or_path, _, meta = read_table(table_or_path)
+        # the envelope's settings travel in the provenance's model entry
+        for stage in (meta.get("provenance", {}).get("stages") or {}).values():
+            for model in stage.get("models", []):
+                if str(model.get("name", "")).startswith("integrated_envelope"):
+                    settings = dict(model.get("settings", {}))
+    env = EnvelopeTable.from_frame(table_or_path)
+    if settings is not None and not env.settings:
+        env.settings = settings
+    return env
+
+
+def _layer_of(envelope):
+    """The hydrogen-layer choice an envelope table was built with (name, or a HydrogenLayer for a number)."""
+    from ..massradius.envelope import HydrogenLayer
+
+    q_h = float(envelope.settings.get("q_h", HYDROGEN_LAYERS["thick"]))
+    if q_h == 0.0:
+        return "none"
+    for name, value in HYDROGEN_LAYERS.items():
+        if np.isclose(q_h, value, rtol=1e-9, atol=0.0):
+            return name
+    return HydrogenLayer(f"q_H={q_h:g}", q_h, 0.5, "hydrogen-layer mass fraction set in the configuration")
 
 
 # ---------------------------------------------------------------- mass-radius
@@ -152,7 +179,8 @@ def build_mass_radius_table(settings, envelope_path=None, envelope=None):
             if envelope_path is None:
                 raise ConfigError("mass.relation: structure needs the envelope table (results/models/envelope.parquet)")
             envelope = load_envelope(envelope_path)
-        df = build(core=cfg["core"], envelope=envelope, coulomb=cfg["coulomb"])
+        df = build(core=cfg["core"], hydrogen_layer=_layer_of(envelope), envelope="integrated",
+                   envelope_table=envelope, coulomb=cfg["coulomb"])
         models = list(df.attrs.get("models", []))
     elif cfg["relation"] == "nauenberg1972":
         from ..massradius.nauenberg import NAUENBERG_1972, NauenbergInverse, logg_cgs
