@@ -166,7 +166,7 @@ def test_report_file_holds_figures_and_summary(report):
     counts = json.loads((report / "results/final/stage_counts.json").read_text())
     summary = (report / "results/report/run_summary.html").read_text()
     assert f"<td class=\"num\">{counts['rows_read']}</td>" in summary
-    assert "Mestel, L. 1952" in summary and "Schmidt, M. 1968" in summary
+    assert "Potekhin" in summary and "PRE 62, 8554" in summary and "Schmidt, M. 1968" in summary
 
 
 @pytest.mark.skipif(chromium_path() is None and not os.environ.get("CINDERCLOCK_REQUIRE_CHROMIUM"),

@@ -84,18 +84,34 @@ def test_outputs_describe_themselves(run_dir):
     assert prov["catalogue_sha256"] == file_checksum(run_dir / "catalogue.csv")
     assert {"ingest", "select", "luminosity", "mass", "cooling"} <= set(prov["stages"])
     refs = json.dumps(prov["stages"]["cooling_model"]["models"])
-    assert "Itoh" in refs and "Mestel" in refs and "Chandrasekhar" in json.dumps(prov["stages"]["mass_radius_model"]["models"])
+    assert "Itoh" in refs and "Potekhin" in refs and "Chandrasekhar" in json.dumps(prov["stages"]["mass_radius_model"]["models"])
 
 
 def test_second_run_has_nothing_to_do(run_dir):
     assert planned_jobs(run_dir) == {}
 
 
+def test_envelope_change_reruns_both_models_and_everything_after_them(run_dir):
+    """The envelope is shared: a new layer choice rebuilds the envelope, mass-radius and cooling tables."""
+    cfg_path = run_dir / "config" / "config.yaml"
+    original = cfg_path.read_text()
+    cfg = yaml.safe_load(original)
+    cfg["envelope"]["hydrogen_layer"] = "thin"
+    cfg_path.write_text(yaml.safe_dump(cfg))
+    try:
+        jobs = planned_jobs(run_dir)
+    finally:
+        cfg_path.write_text(original)
+    assert {"envelope_model": 1, "mass_radius_model": 1, "cooling_model": 1, "mass": 3, "cooling": 3}.items() \
+        <= jobs.items()
+    assert "photometry_model" not in jobs and "luminosity" not in jobs
+
+
 def test_cooling_change_reruns_only_cooling_and_after(run_dir):
     cfg_path = run_dir / "config" / "config.yaml"
     original = cfg_path.read_text()
     cfg = yaml.safe_load(original)
-    cfg["cooling"]["envelope"] = "H"
+    cfg["cooling"]["physics"]["ne22_mass_fraction"] = 0.02
     cfg_path.write_text(yaml.safe_dump(cfg))
     try:
         jobs = planned_jobs(run_dir)
