@@ -5,7 +5,8 @@ checked against scipy.stats.norm); the Poisson deviance is 2 sum [n ln(n/mu) - n
 likelihood-ratio statistic of Poisson counts; common practice) and, for counts large enough, it
 follows a chi-square with K - p degrees of freedom (Wilks' theorem; checked against
 scipy.stats.chi2 through the simulated p-values, which must be uniform under the model); the
-bootstrap mode count uses Silverman's bandwidth (Silverman 1986, eq. 3.31, from memory). The
+bootstrap mode count uses Silverman's normal-reference bandwidth 1.06 sd n^(-1/5) (Silverman
+1986, eq. 3.28, checked through several secondary sources; eq. 3.31 is the robust variant). The
 simulated samples are built through the package's own simulation (IMF, lifetimes, IFMR, Mestel
 cooling forwards), so the checks hold whatever the numerical cooling model: they test the
 estimator, not the physics.
@@ -154,7 +155,8 @@ def test_simulated_p_values_are_uniform_under_the_model():
 
 @pytest.mark.parametrize("seed", range(5))
 def test_mode_count(seed):
-    # a normal sample has one mode; two normals 8 sd apart have two (normal-reference bandwidth, from memory)
+    # a normal sample has one mode; two normals 8 sd apart have two (normal-reference bandwidth,
+    # Silverman 1986 eq. 3.28)
     rng = np.random.default_rng(seed)
     assert count_modes(rng.normal(9.0, 0.3, 200))[0] == 1
     n, where = count_modes(np.concatenate([rng.normal(3.5, 0.1, 120), rng.normal(4.3, 0.1, 80)]))

@@ -14,11 +14,12 @@ Integer mass numbers are used, so every N = Z nucleus gives exactly mu_e = 2 (tr
 would change it by < 0.1 %). The offered cores (mass fractions, our defaults):
 
 * ``C``, ``O`` - pure carbon-12, pure oxygen-16;
-* ``CO`` - 50:50 by mass. Real cores are oxygen-rich in the centre (roughly 60-80 % O, from
-  memory) and vary with progenitor mass and the 12C(alpha,gamma) rate; 50:50 is a conventional
+* ``CO`` - 50:50 by mass. Real cores are oxygen-rich in the centre (roughly 60-80 % O;
+  unverified, see the README's constants table) and vary with progenitor mass and the 12C(alpha,gamma) rate; 50:50 is a conventional
   round choice (common practice);
 * ``He`` - pure helium-4 (binary-evolution products below about 0.45 Msun);
-* ``ONe`` - O:Ne:Mg = 0.60:0.30:0.10 by mass (a typical carbon-burning ash, proportions from memory).
+* ``ONe`` - O:Ne:Mg = 0.60:0.30:0.10 by mass (a typical carbon-burning ash; proportions unverified, see the
+  README's constants table).
 """
 
 from __future__ import annotations
@@ -130,7 +131,7 @@ CORES = {
                           "C:O = 50:50 by mass (conventional round choice, common practice)"),
     "He": CoreComposition("He", ((2.0, 4.0, 1.0),), "pure helium-4"),
     "ONe": CoreComposition("ONe", ((8.0, 16.0, 0.60), (10.0, 20.0, 0.30), (12.0, 24.0, 0.10)),
-                           "O:Ne:Mg = 0.60:0.30:0.10 by mass (typical carbon-burning ash, from memory)"),
+                           "O:Ne:Mg = 0.60:0.30:0.10 by mass (typical carbon-burning ash; proportions unverified)"),
 }
 
 

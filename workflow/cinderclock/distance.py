@@ -10,8 +10,9 @@ infinite distance would show). Every function here first forms the corrected par
 
 so a catalogue whose parallaxes are too small by 0.02 mas has ``zero_point_mas = -0.02`` and the
 correction *adds* 0.02 mas. (For Gaia EDR3 the global offset found from quasars is of that sign and
-order, Lindegren et al. 2021, A&A 649, A4; value from memory; the offset depends on magnitude,
-colour and position, so the configured number is the user's choice.)
+order: "a few tens of microarcseconds", Lindegren et al. 2021, A&A 649, A4, abstract; "around
+-0.02 mas", Gaia EDR3 documentation sect. 7.1.2. The offset depends on magnitude, colour and
+position, so the configured number is the user's choice.)
 
 Estimators
 ----------

@@ -2,7 +2,8 @@
 
 Goodness of fit
     The Poisson deviance D = 2 sum_k [n_k ln(n_k / mu_k) - n_k + mu_k] (the likelihood-ratio
-    statistic against the saturated model; Cash 1979, ApJ 228, 939 -- reference from memory;
+    statistic against the saturated model; it differs from the C statistic of Cash 1979, ApJ 228,
+    939 (reference checked against its ADS record 1979ApJ...228..939C) only by a term of the data;
     common practice for binned counts), computed with the *same floored model* as the likelihood
     so that it is always finite. With few counts per bin D is not chi-square distributed, so its
     p-value comes from a parametric bootstrap: counts drawn from Poisson(mu) of the best fit are
@@ -11,7 +12,8 @@ Goodness of fit
     (D against K - 2 degrees of freedom) is reported beside it.
 Modes of the bootstrap
     A Gaussian kernel density of the bootstrap ages with the normal-reference bandwidth
-    1.06 sd n^(-1/5) (Silverman 1986, Density Estimation, eq. 3.28 -- from memory; it oversmooths
+    1.06 sd n^(-1/5) (Silverman 1986, Density Estimation, eq. 3.28, as quoted by several secondary
+    sources; his robust variant 0.9 min(sd, IQR/1.34) n^(-1/5) is eq. 3.31; it oversmooths
     multimodal data, so it errs towards one mode: the bootstrap ages of a binned fit cluster on a
     scale of a tenth of a Gyr, which is not what this warning is about); a mode counts if its
     height is at least :data:`MODE_MIN_HEIGHT` of the highest and the density between it and its

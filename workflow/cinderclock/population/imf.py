@@ -3,12 +3,15 @@
 xi(M) dM ~ M^(-alpha) dM on each segment, continuous at the joins.
 
 ``salpeter``
-    alpha = 2.35 (Salpeter, E. E. 1955, ApJ 121, 161). Salpeter fitted roughly 0.4-10 Msun (range
-    from memory); white-dwarf progenitors (about 0.8-8 Msun) lie inside it.
+    alpha = 2.35 (Salpeter, E. E. 1955, ApJ 121, 161) over roughly 0.4-10 Msun: slope and range as
+    Kroupa 2001 (MNRAS 322, 231, sect. 2) quotes Salpeter's result; white-dwarf progenitors (about
+    0.8-8 Msun) lie inside it.
 ``kroupa``
     alpha = 0.3 (0.01-0.08 Msun), 1.3 (0.08-0.5 Msun), 2.3 (above 0.5 Msun) (Kroupa, P. 2001,
-    MNRAS 322, 231; segment values as commonly quoted, from memory). Over the white-dwarf
-    progenitor range it differs from Salpeter only by the slope 2.3 against 2.35.
+    MNRAS 322, 231, eq. 2: alpha_2 = 2.3 for 0.5-1 Msun and alpha_3 = 2.3 above 1 Msun, checked
+    against two transcriptions of the arXiv text, astro-ph/0009005; the upper mass limit of
+    100 Msun is our choice). Over the white-dwarf progenitor range it differs from Salpeter only
+    by the slope 2.3 against 2.35.
 
 Integrals over mass intervals are analytic, so the forward model weighs each progenitor-mass cell
 exactly; sampling uses the inverse of the tabulated cumulative number.
@@ -27,21 +30,25 @@ SALPETER_1955 = PublishedRelation(
     key="salpeter",
     reference="Salpeter, E. E. 1955, ApJ 121, 161 (dN/dM ~ M^-2.35)",
     ranges=(ValidRange("initial_mass", 0.4, 10.0, "solMass"),),
-    note="single power law; the calibrated mass range is unverified (see the README's constants table)",
-    source_location="the power-law luminosity function of main-sequence stars (exponent 1.35 in d log M)",
-    verified=False,
-    verification="UNVERIFIED: slope 2.35 is the trade's standard quotation of the paper; the range 0.4-10 Msun is "
-                 "not checked against the paper",
+    note="single power law",
+    source_location="the paper's power law of the creation function (exponent 1.35 per unit log mass); "
+                    "slope 2.35 and range 0.4-10 Msun as quoted in Kroupa 2001, MNRAS 322, 231, sect. 2",
+    verified=True,
+    verification="C2: slope and mass range checked through Kroupa 2001 (sect. 2, beside Fig. 1), which quotes "
+                 "alpha = 2.35 for 0.4 < m < 10 Msun (Salpeter 1955); reference checked against its ADS record "
+                 "1955ApJ...121..161S",
 )
 KROUPA_2001 = PublishedRelation(
     key="kroupa",
     reference="Kroupa, P. 2001, MNRAS 322, 231 (segments alpha = 0.3, 1.3, 2.3 joined at 0.08 and 0.5 Msun)",
     ranges=(ValidRange("initial_mass", 0.01, 100.0, "solMass"),),
-    note="three power-law segments; above 1 Msun the slope is uncertain (see the README's constants table)",
-    source_location="the multi-part power law (segments 0.01-0.08, 0.08-0.5, 0.5-100 Msun)",
-    verified=False,
-    verification="UNVERIFIED: segment slopes 0.3, 1.3, 2.3 and break masses as commonly quoted, not checked "
-                 "against the paper",
+    note="three power-law segments; above 1 Msun the slope is uncertain (alpha_3 = 2.3 +- 0.7, eq. 2); the "
+         "upper limit 100 Msun is our choice",
+    source_location="eq. 2 (alpha_0 = 0.3, 0.01-0.08; alpha_1 = 1.3, 0.08-0.5; alpha_2 = 2.3, 0.5-1; "
+                    "alpha_3 = 2.3, above 1 Msun)",
+    verified=True,
+    verification="C2: eq. 2 slopes and break masses checked against two independent transcriptions of the "
+                 "paper's arXiv text (astro-ph/0009005)",
 )
 
 

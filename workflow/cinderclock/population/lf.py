@@ -2,8 +2,9 @@
 
 In a bin of width dM the space density per magnitude is Phi = sum_i (1/Vmax_i) / dM (Schmidt
 1968, ApJ 151, 393). Its Poisson error treats each star's contribution as a Poisson count of
-weight 1/Vmax: sigma = sqrt(sum_i 1/Vmax_i^2) / dM (common practice, e.g. Liebert, Dahn & Monet
-1988, ApJ 332, 891 -- reference from memory). The bootstrap error resamples the stars with
+weight 1/Vmax: sigma = sqrt(sum_i 1/Vmax_i^2) / dM (common practice; white-dwarf luminosity
+functions by 1/Vmax go back to Liebert, Dahn & Monet 1988, ApJ 332, 891, reference checked in
+citing papers' reference lists; that they use this error form is unverified). The bootstrap error resamples the stars with
 replacement and takes the standard deviation of Phi over the resamples; it also captures the
 scatter of the weights.
 

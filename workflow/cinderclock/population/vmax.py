@@ -24,9 +24,9 @@ so <V/Vmax> = 1/2 with a standard error 1/sqrt(12 N) (the variance of U(0, 1) is
 Density weighting (optional): a disk whose density falls exponentially with height,
 rho/rho_0 = exp(-|z|/H), z = r sin b, seen from the mid-plane (the Sun's height of some 20 pc is
 neglected). The "effective volume" replaces the geometric volume (Felten 1976, ApJ 207, 700, on
-generalising Schmidt's estimator; the exponential-disk form as used by Stobie, Ishida & Peacock
-1989, MNRAS 238, 709 -- both references from memory; common practice in white-dwarf luminosity
-functions). Two geometries:
+generalising Schmidt's estimator: reference and abstract checked, ADS 1976ApJ...207..700F; the
+exponential-disk form as used by Stobie, Ishida & Peacock 1989, MNRAS 238, 709: reference
+unverified; common practice in white-dwarf luminosity functions). Two geometries:
 
 ``line_of_sight``
     the cone through the star's own direction:

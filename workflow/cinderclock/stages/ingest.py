@@ -39,8 +39,8 @@ TEXT_COLUMN_FRACTION = 0.5
 #: Magnitudes outside this interval are treated as sentinels (common practice: catalogues use 99, -99, 99.99).
 MAG_PLAUSIBLE = (-5.0, 35.0)
 #: A median parallax uncertainty below this (mas) is taken as a unit error. No astrometric survey
-#: comes near it: Gaia EDR3 reaches about 0.02 mas for its brightest stars and about 0.5 mas at
-#: G = 20 (Lindegren et al. 2021, A&A 649, A2; values from memory), and white-dwarf samples are
+#: comes near it: Gaia EDR3's median parallax uncertainty is 0.02-0.03 mas at G = 9 to 14 and about
+#: 0.5 mas at G = 20 (Lindegren et al. 2021, A&A 649, A2, abstract), and white-dwarf samples are
 #: faint, so their median is a few tenths of a mas. The same survey in arcsec has a median of
 #: ~1e-4 to 1e-3 "mas", far below the floor, while a genuinely distant sample (parallaxes all
 #: below 0.1 mas) still has uncertainties of >= 0.02 mas and passes.
