@@ -106,6 +106,15 @@ def _radius_for(env, masses, log_lum, mu_e):
     n_m, n_l = log_lum.shape
     if hasattr(env, "radius_rsun"):
         r = np.asarray(env.radius_rsun(masses[:, None] * np.ones((1, n_l)), log_lum), dtype=float)
+        # beyond the computed envelopes (hotter or cooler than its Teff grid) the radius is held at
+        # the nearest computed one: the cool end is nearly the zero-temperature radius, and hot
+        # rows are flagged by the envelope's validity range
+        for i in range(n_m):                       # one pass per track, not per star
+            ok = np.isfinite(r[i])
+            if ok.any() and not ok.all():
+                x = log_lum[i]
+                order = np.argsort(x[ok])
+                r[i] = np.interp(x, x[ok][order], r[i][ok][order])
         return r, True
     return np.broadcast_to(_radius_sequence(masses, mu_e)[:, None], (n_m, n_l)), False
 
