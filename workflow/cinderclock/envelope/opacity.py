@@ -40,8 +40,9 @@ from __future__ import annotations
 import numpy as np
 
 from ..constants import SIGMA_SB_SI
-from .eos import BOHR_CM, CHI_H_EV, E2, EV, H_PLANCK
-from .fermi import C_LIGHT, HBAR, K_B, M_E
+from .conduction import electron_conductivity
+from .eos import BOHR_CM, CHI_H_EV, EV, H_PLANCK
+from .fermi import C_LIGHT, K_B
 
 SIGMA_SB = SIGMA_SB_SI * 1e3
 SIGMA_T = 6.6524587e-25                 # Thomson cross-section, cm^2 (CODATA)
@@ -129,17 +130,13 @@ def radiative_opacity(state, temperature_k, rho, element):
 
 
 def conductive_opacity(state, temperature_k, rho, element):
-    """Electron-conduction opacity 16 sigma T^3 / (3 rho K_e) in cm^2 g^-1 (see module docstring)."""
+    """Electron-conduction opacity 16 sigma T^3 / (3 rho K_e) in cm^2 g^-1, K_e from
+    :func:`cinderclock.envelope.conduction.electron_conductivity` (any degeneracy, e-i and e-e)."""
     t = np.asarray(temperature_k, dtype=float)
-    x = state["fermi_x"]
-    gamma_rel = np.sqrt(1.0 + x * x)
-    z = float(element.charge)
-    v2 = x * x / (1.0 + x * x)
-    gam_ion = np.maximum(state["gamma"], 1e-6)
-    lam_c = np.maximum(np.log((2 * np.pi * z / 3.0) ** (1 / 3) * np.sqrt(1.5 + 3.0 / gam_ion)) - 0.5 * v2, 1.0)
-    e_f = M_E * C_LIGHT**2 * gamma_rel
-    tau = (HBAR * C_LIGHT / E2) ** 2 * 0.75 * np.pi * HBAR / (z * e_f * lam_c)
-    k_e = np.pi**2 * K_B**2 * t * state["n_e"] * tau / (M_E * gamma_rel)
+    frac = state["fractions"]
+    n_ion = frac[..., 1:] * state["n_nuc"][..., None]
+    charges = np.arange(1, element.charge + 1, dtype=float)
+    k_e = electron_conductivity(state["n_e"], state["eta"], t, n_ion, charges, state["fermi_x"])["kappa"]
     return 16.0 * SIGMA_SB * t**3 / (3.0 * rho * k_e)
 
 
@@ -150,7 +147,10 @@ def total_opacity(state, temperature_k, rho, element, chunk=64):
     for k in range(0, t.shape[0], chunk):
         sub = {key: val[k:k + chunk] for key, val in state.items()}
         rad[k:k + chunk] = radiative_opacity(sub, t[k:k + chunk], rho[k:k + chunk], element)
-    cond = conductive_opacity(state, t, rho, element)
+    cond = np.empty(t.shape)
+    for k in range(0, t.shape[0], chunk * 4):
+        sub = {key: val[k:k + chunk * 4] for key, val in state.items()}
+        cond[k:k + chunk * 4] = conductive_opacity(sub, t[k:k + chunk * 4], rho[k:k + chunk * 4], element)
     rad = np.where(np.isnan(rad), np.inf, rad)
     return 1.0 / (1.0 / rad + 1.0 / cond), rad, cond
 
