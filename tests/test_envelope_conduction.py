@@ -92,3 +92,28 @@ def test_conductive_opacity_falls_with_degeneracy():
         st = gas_state(rho, 1e6, HELIUM)
         ks.append(float(conductive_opacity(st, np.array(1e6), np.array(rho), HELIUM)))
     assert np.all(np.diff(np.log(ks)) < 0)
+
+
+@pytest.mark.parametrize("eta, u", [(-10.0, 3.0), (0.0, 3.0), (5.0, 1.0), (30.0, 4.0)])
+def test_free_free_degeneracy_factor_against_quadrature(eta, u):
+    """Free-free Pauli blocking: theta = int_0^inf [f(x) - f(x+u)] dx / [(2/sqrt(pi)) F_1/2(eta)
+    (1 - e^-u)] (net absorption with Fermi-Dirac electrons over the Kramers non-degenerate form;
+    Cox & Giuli 1968 sec. 16.2, from memory), each integral by scipy quadrature (general-purpose
+    library); 1e-6. Non-degenerate limit theta -> 1 (Kramers)."""
+    from scipy.integrate import quad
+
+    from cinderclock.envelope.opacity import free_free_degeneracy_factor
+
+    def fd(x):
+        return 1.0 / (np.exp(min(x - eta, 700.0)) + 1.0)
+
+    top = max(eta, 0.0) + 60.0
+    num = quad(lambda x: fd(x) - fd(x + u), 0.0, top, points=[max(eta - u, 0.0), max(eta, 0.0)], limit=400)[0]
+    f_half = quad(lambda x: np.sqrt(x) * fd(x), 0.0, top, points=[max(eta, 0.0)], limit=400)[0]
+    ref = num / (2 / np.sqrt(np.pi) * f_half * (1 - np.exp(-u)))
+    got = float(free_free_degeneracy_factor(eta, u, f_half))
+    assert got == pytest.approx(ref, rel=1e-6)
+    if eta < -5:
+        assert got == pytest.approx(1.0, abs=1e-4)
+    if eta > 20:
+        assert got < 0.05
