@@ -4,8 +4,9 @@ For each star the photospheric radius R is adjusted until the envelope integrate
 photosphere (:func:`~cinderclock.envelope.structure.integrate`) reaches the base of the helium
 layer, Dm = q_He M, at the radius that the zero-temperature core (Chandrasekhar equation with the
 Salpeter Coulomb term, :func:`cinderclock.massradius.chandrasekhar.structure_profile`) has at
-mass coordinate (1 - q_He) M. One fixed-point step and then secant steps, all vectorised over the
-grid; stars that do not converge, or whose envelope cannot be bound (hot, low-mass stars whose
+mass coordinate (1 - q_He) M. One fixed-point step and then secant steps, vectorised over the stars
+not yet converged (each to |r_base - r_core| / R < 1e-7, so radii are smooth in Teff at the 1e-7
+level); stars that do not converge, or whose envelope cannot be bound (hot, low-mass stars whose
 radius runs away), are NaN.
 """
 
@@ -25,9 +26,11 @@ R_SUN_CM = R_SUN_M * 1e2
 #: radius ratio r(1 - q_He) / R_0 is interpolated by a cubic spline in ln M (R_0 itself comes
 #: from a dense zero-temperature sequence).
 CORE_NODES_MSUN = (0.10, 0.25, 0.45, 0.7, 0.95, 1.15, 1.28, 1.36)
-N_ITERATIONS = 6
-#: Target |r_base - r_core| / R of the iteration, and the largest residual accepted in a table.
-TOLERANCE = 1e-5
+#: Secant iterations at most; each pass integrates only the stars not yet converged.
+N_ITERATIONS = 16
+#: Target |r_base - r_core| / R of the iteration, and the largest residual accepted in a table
+#: (stars above TOLERANCE after all passes are rare: the table reports them in ``residual``).
+TOLERANCE = 1e-7
 ACCEPT = 3e-3
 
 
@@ -60,6 +63,38 @@ def _core_splines(q_he, core):
     return s0, CubicSpline(np.log(nodes), np.array(ratio))
 
 
+def _bisect_fallback(f, best_r, best_rel, out, width=0.05, n_steps=20):
+    """Bisection for the stars the secant left above TOLERANCE (cool, convective envelopes where
+    r_base(R) has small jumps): bracket best_r (1 -+ width), halve n_steps times (bracket 1e-7
+    R) and take the midpoint. The residual returned for them is the relative bracket width where
+    |f| / R at the midpoint stays large (the root sits on a jump of r_base), so ``residual`` keeps
+    measuring how well R is determined. ``out`` (diagnostics) is updated in place."""
+    sel = np.isfinite(best_rel) & (best_rel > TOLERANCE)
+    if not sel.any():
+        return best_r, best_rel
+    lo, hi = best_r[sel] * (1.0 - width), best_r[sel] * (1.0 + width)
+    f_lo, _ = f(lo, sel)
+    f_hi, _ = f(hi, sel)
+    ok = np.isfinite(f_lo) & np.isfinite(f_hi) & (np.sign(f_lo) != np.sign(f_hi))
+    for _ in range(n_steps):                    # loop over bisection steps, not stars
+        mid = 0.5 * (lo + hi)
+        f_mid, _ = f(mid, sel)
+        same = np.isfinite(f_mid) & (np.sign(f_mid) == np.sign(f_lo))
+        lo, f_lo = np.where(same, mid, lo), np.where(same, f_mid, f_lo)
+        hi = np.where(same, hi, mid)
+    mid = 0.5 * (lo + hi)
+    f_mid, o_mid = f(mid, sel)
+    rel = np.minimum(np.abs(f_mid) / mid, (hi - lo) / mid)
+    use = ok & np.isfinite(f_mid) & (rel < best_rel[sel])
+    r_out, rel_out = best_r.copy(), best_rel.copy()
+    idx = np.flatnonzero(sel.ravel())[use]
+    r_out.ravel()[idx] = mid[use]
+    rel_out.ravel()[idx] = rel[use]
+    for k, v in o_mid.items():
+        out[k].ravel()[idx] = v[use]
+    return r_out, rel_out
+
+
 def solve_grid(masses_msun, teff_k, atmosphere="H", q_h=1e-4, q_he=1e-2, core="CO", alpha=1.0):
     """Envelope solutions on the outer product of ``masses_msun`` and ``teff_k``.
 
@@ -82,26 +117,48 @@ def solve_grid(masses_msun, teff_k, atmosphere="H", q_h=1e-4, q_he=1e-2, core="C
     rc_2 = np.broadcast_to(r_core[:, None], m2.shape) * R_SUN_CM
     mass_g = m2 * M_SUN_G
 
-    def f(radius):
-        out = integrate(lookup, mass_g, radius, t2, q_h, q_he, alpha, top)
-        return out["r_base"] - rc_2, out
+    def f(radius, sel):
+        out = integrate(lookup, mass_g[sel], radius, t2[sel], q_h, q_he, alpha, top)
+        return out["r_base"] - rc_2[sel], out
 
+    everyone = np.ones(m2.shape, dtype=bool)
     ra = r0_2.copy()
-    fa, out = f(ra)
-    rb = ra - fa
+    fa, _ = f(ra[everyone], everyone)
+    fa = fa.reshape(m2.shape)
+    rb = ra - np.nan_to_num(fa)
+    fb = np.full(m2.shape, np.nan)
+    out = None
+    todo = everyone.copy()
+    best_r = np.full(m2.shape, np.nan)
+    best_rel = np.full(m2.shape, np.inf)
     for it in range(N_ITERATIONS + 1):
-        fb, out = f(rb)
+        # integrate only the stars not yet converged (all of them on the first pass)
+        fb_sel, out_sel = f(rb[todo], todo)
+        fb[todo] = fb_sel
+        if out is None:
+            out = {k: np.full(m2.shape, np.nan) for k in out_sel}
+        with np.errstate(invalid="ignore"):
+            # fall-back: keep each star's best radius so far (a secant step that leaves the
+            # tables, NaN, or worsens the residual never replaces a usable solution)
+            better = todo & np.isfinite(fb) & ~(np.abs(fb) / rb >= best_rel)
+        for k, v in out_sel.items():
+            full = np.full(m2.shape, np.nan)
+            full[todo] = v
+            out[k] = np.where(better, full, out[k])
+        best_r = np.where(better, rb, best_r)
+        best_rel = np.where(better, np.abs(fb) / rb, best_rel)
         with np.errstate(invalid="ignore"):
             rel = np.abs(fb) / rb
-            if it == N_ITERATIONS or np.mean(rel[np.isfinite(rel)] > TOLERANCE) < 0.01:
+            todo = np.isfinite(rel) & (rel > TOLERANCE)
+            if it == N_ITERATIONS or not todo.any():
                 break
             slope = (fb - fa) / (rb - ra)
             slope = np.where(np.isfinite(slope) & (slope > 0.05), slope, 1.0)
             step = np.clip(-fb / slope, -0.5 * rb, 0.5 * rb)
-        ra, fa = rb, fb
-        rb = rb + np.nan_to_num(step)
+        ra, fa = np.where(todo, rb, ra), np.where(todo, fb, fa)
+        rb = np.where(todo, rb + np.nan_to_num(step), rb)
+    rb, resid = _bisect_fallback(f, best_r, best_rel, out)
     with np.errstate(invalid="ignore"):
-        resid = np.abs(fb) / rb
         good = np.isfinite(resid) & (resid < ACCEPT) & (rb < 20.0 * r0_2)
     nan = np.where(good, 1.0, np.nan)
     radius_rsun = rb / R_SUN_CM * nan

@@ -40,8 +40,9 @@ from __future__ import annotations
 import numpy as np
 
 from ..constants import SIGMA_SB_SI
-from .eos import BOHR_CM, CHI_H_EV, E2, EV, H_PLANCK
-from .fermi import C_LIGHT, HBAR, K_B, M_E
+from .conduction import electron_conductivity
+from .eos import BOHR_CM, CHI_H_EV, EV, H_PLANCK
+from .fermi import C_LIGHT, K_B, QUANTUM_DENSITY
 
 SIGMA_SB = SIGMA_SB_SI * 1e3
 SIGMA_T = 6.6524587e-25                 # Thomson cross-section, cm^2 (CODATA)
@@ -75,6 +76,35 @@ def hminus_ff_per_atom(lambda_a, temperature_k):
     f1 = 15.2827 - 9.2846 * lg + 1.99381 * lg**2 - 0.142631 * lg**3
     f2 = -197.789 + 190.266 * lg - 67.9775 * lg**2 + 10.6913 * lg**3 - 0.625151 * lg**4
     return 1e-26 * 10.0 ** (f0 + f1 * th + f2 * th**2)
+
+
+def free_free_degeneracy_factor(eta, u, f_half):
+    """Pauli-blocking factor of free-free absorption (net of stimulated emission), 0 < theta <= 1.
+
+    With a Kramers cross-section per electron ~ 1/v and g(eps) deps ~ v deps, the net absorption
+    by electrons of any degeneracy is ~ int_0^inf [f(x) - f(x + u)] dx = ln(1 + e^eta) -
+    ln(1 + e^(eta - u)) (x = eps / kT, u = h nu / kT; Pauli-blocked absorption f (1 - f') less
+    stimulated emission f' (1 - f)); the non-degenerate value, which the Kramers formula written
+    with n_e assumes, is (2 / sqrt(pi)) F_1/2(eta) (1 - e^-u). theta is their ratio: 1 for
+    eta << 0, ~ u / [(1 - e^-u) (4 / (3 sqrt(pi))) eta^(3/2)] for eta >> u (the degeneracy
+    correction of free-free opacity as in Cox & Giuli 1968, *Principles of Stellar Structure*,
+    sec. 16.2, from memory; derived here).
+
+    Parameters
+    ----------
+    eta : array_like
+        Degeneracy parameter mu / kT.
+    u : array_like
+        h nu / kT.
+    f_half : array_like
+        F_1/2(eta) = int_0^inf x^(1/2) / (e^(x - eta) + 1) dx, i.e. n_e / (QUANTUM_DENSITY T^1.5).
+    """
+    eta = np.asarray(eta, dtype=float)
+    u = np.asarray(u, dtype=float)
+    num = np.logaddexp(0.0, eta) - np.logaddexp(0.0, eta - u)
+    den = 2.0 / np.sqrt(np.pi) * np.asarray(f_half, dtype=float) * (-np.expm1(-u))
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.clip(num / den, 0.0, 1.0)
 
 
 def _hydrogenic_bf(lam, kt_ev, n_ion_stage, z, chi_ev, n_nuc):
@@ -120,8 +150,9 @@ def radiative_opacity(state, temperature_k, rho, element):
         kap += np.where(nu >= nu0, n_he1[..., None] * 7.4e-18 * (nu0 / nu) ** 3, 0.0) * stim
         kap += _hydrogenic_bf(lam, kt_ev, n_he2, 2.0, element.chi_ev[1], n_nuc[..., None]) * stim
         ions = [(1.0, n_he2), (2.0, frac[..., 2] * n_nuc)]
+    theta = free_free_degeneracy_factor(state["eta"][..., None], _U, (state["n_e"] / (QUANTUM_DENSITY * t**1.5))[..., None])
     for z, n_i in ions:
-        kap += 3.69e8 * z * z * (n_e * n_i[..., None]) / np.sqrt(t[..., None]) / nu**3 * stim
+        kap += 3.69e8 * z * z * (n_e * n_i[..., None]) / np.sqrt(t[..., None]) / nu**3 * stim * theta
     kap += SIGMA_T * n_e
     with np.errstate(divide="ignore"):
         inv = np.sum(_WB_DU / kap, axis=-1) / np.sum(_WB_DU)
@@ -129,17 +160,13 @@ def radiative_opacity(state, temperature_k, rho, element):
 
 
 def conductive_opacity(state, temperature_k, rho, element):
-    """Electron-conduction opacity 16 sigma T^3 / (3 rho K_e) in cm^2 g^-1 (see module docstring)."""
+    """Electron-conduction opacity 16 sigma T^3 / (3 rho K_e) in cm^2 g^-1, K_e from
+    :func:`cinderclock.envelope.conduction.electron_conductivity` (any degeneracy, e-i and e-e)."""
     t = np.asarray(temperature_k, dtype=float)
-    x = state["fermi_x"]
-    gamma_rel = np.sqrt(1.0 + x * x)
-    z = float(element.charge)
-    v2 = x * x / (1.0 + x * x)
-    gam_ion = np.maximum(state["gamma"], 1e-6)
-    lam_c = np.maximum(np.log((2 * np.pi * z / 3.0) ** (1 / 3) * np.sqrt(1.5 + 3.0 / gam_ion)) - 0.5 * v2, 1.0)
-    e_f = M_E * C_LIGHT**2 * gamma_rel
-    tau = (HBAR * C_LIGHT / E2) ** 2 * 0.75 * np.pi * HBAR / (z * e_f * lam_c)
-    k_e = np.pi**2 * K_B**2 * t * state["n_e"] * tau / (M_E * gamma_rel)
+    frac = state["fractions"]
+    n_ion = frac[..., 1:] * state["n_nuc"][..., None]
+    charges = np.arange(1, element.charge + 1, dtype=float)
+    k_e = electron_conductivity(state["n_e"], state["eta"], t, n_ion, charges, state["fermi_x"])["kappa"]
     return 16.0 * SIGMA_SB * t**3 / (3.0 * rho * k_e)
 
 
@@ -150,7 +177,10 @@ def total_opacity(state, temperature_k, rho, element, chunk=64):
     for k in range(0, t.shape[0], chunk):
         sub = {key: val[k:k + chunk] for key, val in state.items()}
         rad[k:k + chunk] = radiative_opacity(sub, t[k:k + chunk], rho[k:k + chunk], element)
-    cond = conductive_opacity(state, t, rho, element)
+    cond = np.empty(t.shape)
+    for k in range(0, t.shape[0], chunk * 4):
+        sub = {key: val[k:k + chunk * 4] for key, val in state.items()}
+        cond[k:k + chunk * 4] = conductive_opacity(sub, t[k:k + chunk * 4], rho[k:k + chunk * 4], element)
     rad = np.where(np.isnan(rad), np.inf, rad)
     return 1.0 / (1.0 / rad + 1.0 / cond), rad, cond
 

@@ -36,6 +36,15 @@ N_INTERIOR = 240
 TAU_TOP = 1e-4
 _FIELDS = ("log_rho", "nabla_ad", "log_cp", "delta", "log_kappa", "eta", "log_kappa_rad", "log_kappa_cond")
 _LN10 = np.log(10.0)
+#: Width (in ln Dm) of the smoothed H/He interface: 0.1, i.e. the interface spreads over ~0.1 dex
+#: in mass -- narrower than diffusive-equilibrium profiles of real DA envelopes (our numerical
+#: choice; it keeps the integrand smooth inside RK4 steps).
+LAYER_WIDTH = 0.1
+
+
+def _blend(a, b, w):
+    """(1 - w) a + w b, taking the defined side where the other is NaN (off one layer's table)."""
+    return np.where(np.isnan(a), b, np.where(np.isnan(b), a, (1.0 - w) * a + w * b))
 
 
 @lru_cache(maxsize=2)
@@ -131,8 +140,15 @@ def integrate(lookup, mass_g, radius_cm, teff, q_h, q_he, alpha, top_layer, pres
 
     def rhs(ln_p, y, n_fields=5):
         ln_t, r, ln_dm = y
-        layer = np.where(ln_dm < ln_dm_h, top_layer, he_layer) if q_h > 0 else np.full(ln_t.shape, top_layer)
-        v = lookup(ln_t / _LN10, ln_p / _LN10, layer, n_fields)
+        if q_h > 0:
+            # smooth H -> He transition over ~LAYER_WIDTH in ln Dm: a step inside an RK4 step would
+            # make r_base jitter with the parameters (see module docstring)
+            w_he = 0.5 * (1.0 + np.tanh((ln_dm - ln_dm_h) / LAYER_WIDTH))
+            v_h = lookup(ln_t / _LN10, ln_p / _LN10, np.full(ln_t.shape, top_layer), n_fields)
+            v_he = lookup(ln_t / _LN10, ln_p / _LN10, np.full(ln_t.shape, he_layer), n_fields)
+            v = {k: _blend(v_h[k], v_he[k], w_he) for k in v_h}
+        else:
+            v = lookup(ln_t / _LN10, ln_p / _LN10, np.full(ln_t.shape, top_layer), n_fields)
         p = np.exp(ln_p)
         t = np.exp(ln_t)
         rho = 10.0 ** v["log_rho"]
