@@ -72,7 +72,7 @@ class OxygenProfile:
     def as_dict(self):
         """Provenance entry."""
         return {**asdict(self), "reference": "shaped after Salaris, M. et al. 1997, ApJ 486, 413 "
-                "(internal C/O profiles; values read from memory, not a fit)"}
+                "(internal C/O profiles; UNVERIFIED: not read off the paper's figures, not a fit)"}
 
 
 #: Default C/O stratification.

@@ -154,6 +154,11 @@ def _bpy_rational(eta):
     return r, r1, r2
 
 
+#: Above this eta = T_p / T the fit's polynomials would overflow; there the phonon gas is deep in its
+#: T^3 regime (F, U proportional to T^4, c_v to T^3: exact for a harmonic crystal, common practice).
+_ETA_T3 = 1.0e4
+
+
 def harmonic_lattice(eta):
     """Thermal free energy, energy (k T per ion) and heat capacity (k_B per ion) of the bcc phonons.
 
@@ -167,7 +172,7 @@ def harmonic_lattice(eta):
         ``(f, u, c)``; the zero-point energy is excluded from f and u.
     """
     eta = np.asarray(eta, dtype=float)
-    e = np.maximum(eta, 1e-3)
+    e = np.clip(eta, 1e-3, _ETA_T3)
     f = np.zeros_like(e)
     f1 = np.zeros_like(e)
     f2 = np.zeros_like(e)
@@ -179,6 +184,10 @@ def harmonic_lattice(eta):
     r, r1, r2 = _bpy_rational(e)
     f, f1, f2 = f - r, f1 - r1, f2 - r2
     u, c = e * f1, -e**2 * f2
+    deep = eta > _ETA_T3
+    if np.any(deep):            # far below the Debye temperature: the exact phonon T^3 scaling
+        scale = (_ETA_T3 / np.where(deep, eta, _ETA_T3)) ** 3
+        f, u, c = np.where(deep, f * scale, f), np.where(deep, u * scale, u), np.where(deep, c * scale, c)
     small = eta < 1e-3
     if np.any(small):
         es = np.maximum(eta, 1e-300)

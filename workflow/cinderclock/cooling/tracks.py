@@ -177,7 +177,8 @@ INGREDIENT_REFERENCES = tuple(_entry(*row) for row in (
                   "liquid-solid entropy difference (about 0.77 kT per ion in Salaris, M. et al. 1997, ApJ 486, 413)",
      "where": "cinderclock/cooling/ocp.py melting_gamma, latent_heat_kt"},
     {"ingredient": "C/O profile", "relation": "oxygen_profile",
-     "reference": "shaped after Salaris, M. et al. 1997, ApJ 486, 413 (from memory)",
+     "reference": "shaped after the internal C/O profiles of Salaris, M. et al. 1997, ApJ 486, 413 "
+                  "(UNVERIFIED: not read off the paper's figures)",
      "where": "cinderclock/cooling/coreprofile.py OxygenProfile"},
     {"ingredient": "neutrino emission", "relation": "itoh_1996",
      "reference": "Itoh, N., Hayashi, H., Nishikawa, A. & Kohyama, Y. 1996, ApJS 102, 411",
@@ -187,7 +188,7 @@ INGREDIENT_REFERENCES = tuple(_entry(*row) for row in (
 #: Honest cautions of the numerical model (see the module docstring).
 CAUTIONS = (
     "isothermal core on the zero-temperature density profile (no contraction energy)",
-    "one C/O profile shape for every mass, read from memory of published profiles",
+    "one C/O profile shape for every mass (unverified against published profiles)",
     "phase separation with instantaneous complete mixing (upper bound on its efficiency); "
     "linear-mixing liquid in the phase diagram; no 22Ne distillation",
     "22Ne settling at the uniform-trace rate with an energy cap (no depletion profile); the diffusion "
