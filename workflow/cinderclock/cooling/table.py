@@ -75,6 +75,12 @@ MODEL_CAUTIONS = {
 }
 
 
+#: Below this Teff (K) a grey Eddington boundary condition misrepresents the atmosphere: non-grey
+#: model atmospheres are needed (Rohrmann et al. 2012, A&A 546, A119, abstract). Rows of a table built
+#: on the integrated (grey) envelope carry ``grey_boundary`` = 1 there; the cooling stage flags them.
+GREY_BOUNDARY_MIN_TEFF_K = 5800.0
+
+
 def default_log_lum_grid(bright=BRIGHT_LIMIT_LOG_LUM, far_future=FAR_FUTURE_LOG_LUM):
     """Descending log L nodes: steps of 0.01 dex down to -6, then 0.05 dex to ``far_future``."""
     fine = np.round(np.arange(bright, -6.0, -0.01), 6)
@@ -225,6 +231,8 @@ def build_cooling_table(model="numerical", masses=None, envelope="He", core="CO"
         "crystallized_fraction": qc.ravel(),
         "far_future": (log_lum < faint[:, None]).ravel(),
     })
+    if finite_t:
+        df["grey_boundary"] = (df["teff_k"].to_numpy() < GREY_BOUNDARY_MIN_TEFF_K).astype(float)
     df = df[np.isfinite(df["age_yr"].to_numpy())].reset_index(drop=True)
     kind = "numerical" if model == "numerical" else "mestel"
     df.attrs["cooling_model"] = {
@@ -254,6 +262,8 @@ def _columns():
         "log_lum_nu": Column("dex(solLum)", "log10 neutrino luminosity (NaN where not modelled)", "phys.luminosity"),
         "crystallized_fraction": Column("", "Crystallized mass fraction of the star (NaN where not modelled)", ""),
         "far_future": Column("", "True fainter than the model's calibrated range (formal continuation)", "meta.code"),
+        "grey_boundary": Column("", "1 where Teff < 5,800 K: the grey boundary condition of the integrated "
+                                    "envelope fails there (Rohrmann et al. 2012)", "meta.code"),
     }
 
 

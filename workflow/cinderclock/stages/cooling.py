@@ -68,6 +68,10 @@ def cooling(table, settings, grid, compare=None):
     has_inputs = np.isfinite(m) & np.isfinite(logl)
     bits = set_flag(bits, "cooling_off_table", ~np.isfinite(age_yr))
     bits = set_flag(bits, "cooling_extrapolated", status == STATUS_FAR_FUTURE)
+    if "grey_boundary" in grid.columns:
+        with np.errstate(invalid="ignore"):
+            grey = grid.interpolate("grey_boundary", m, logl) > 0.5
+        bits = set_flag(bits, "grey_boundary", has_inputs & grey)
     if settings["cooling"]["model"] == "mestel":
         # Mestel's law ignores neutrinos (bright end) and crystallization (faint end): flag its range
         from ..cooling.mestel import MESTEL_1952
