@@ -28,6 +28,7 @@ from cinderclock.cooling import mestel  # noqa: E402
 from cinderclock.population.cooling_link import mestel_link  # noqa: E402
 from cinderclock.population.agefit import BOOTSTRAP_INTERVALS, REPORTED_INTERVAL  # noqa: E402
 from cinderclock.population.diagnostics import count_modes  # noqa: E402
+from cinderclock.population.model import progenitor_choices  # noqa: E402
 from cinderclock.population.sfh import PiecewiseHistory  # noqa: E402
 from cinderclock.population.sfh_stage import sfh_stage  # noqa: E402
 from cinderclock.population.simulate import observe_sample, simulate_white_dwarfs  # noqa: E402
@@ -62,9 +63,16 @@ def settings():
     return s
 
 
-def sample(seed, age_gyr, n_formed, sfh=None):
+SETTINGS = settings()
+
+
+def sample(seed, age_gyr, n_formed, sfh=None, s=None):
+    """A measured sample; its progenitors follow the same IFMR, lifetimes and metallicity as the fitted
+    model (``progenitor_choices`` of the settings ``s``)."""
     rng = np.random.default_rng(seed)
-    wd = simulate_white_dwarfs(rng, n_formed, age_gyr, lum, sfh=sfh)
+    c = progenitor_choices((s or SETTINGS)["population"], (s or SETTINGS)["progenitor"])
+    wd = simulate_white_dwarfs(rng, n_formed, age_gyr, lum, sfh=sfh, ifmr=c["ifmr"], lifetime=c["lifetime"],
+                               metallicity=c["metallicity"])
     o = observe_sample(rng, wd, RADIUS_PC, MAG_LIMIT, plx_err_mas=PLX_ERR, mag_err=MAG_ERR,
                        min_parallax_over_error=5.0, distance_limit_pc=CUT_PC)
     n = o["mbol"].size
@@ -79,7 +87,7 @@ def coverage(n_real, n_formed, s, link):
         n_stars = []
         t0 = time.perf_counter()
         for r in range(n_real):
-            table = sample(1000 * int(age) + r, age, n_formed)
+            table = sample(1000 * int(age) + r, age, n_formed, s=s)
             stars, _, lfs = luminosity_function_stage(table, s)
             s["population"]["measurement_errors"]["fold"] = True
             fit, _, _ = population_age_stage(stars, link, s, lfs)
@@ -115,16 +123,16 @@ def coverage(n_real, n_formed, s, link):
 
 def mode_false_alarms(n_trials=1000, n=200):
     """False-alarm rate of the bimodality criterion on unimodal samples of the bootstrap's size, and
-    its detection rate on two normals at Ashman's D = 3 (equal sds, 30 % minor share)."""
+    its detection rate on two normals at Ashman's D = 3 (equal sds, 30 % minor share); values of order 10 (ages in Gyr: the 5 % separation threshold applies)."""
     rng = np.random.default_rng(4)
     cases = {
-        "normal": lambda: rng.normal(0, 1, n),
-        "skewed (gamma, shape 2)": lambda: rng.gamma(2.0, 1.0, n),
-        "heavy tails (Student t, 3 dof)": lambda: rng.standard_t(3, n),
+        "normal": lambda: rng.normal(10, 1, n),
+        "skewed (gamma, shape 2)": lambda: 8 + rng.gamma(2.0, 1.0, n),
+        "heavy tails (Student t, 3 dof)": lambda: 10 + rng.standard_t(3, n),
         "normal on a coarse grid (0.5 sd steps, like the clustered ages of a binned fit)":
-            lambda: np.round(rng.normal(0, 1, n) * 2) / 2,
+            lambda: 10 + np.round(rng.normal(0, 1, n) * 2) / 2,
         "two normals, D = 3, minor share 30 % (detection)":
-            lambda: np.where(rng.random(n) < 0.3, rng.normal(3.0, 1.0, n), rng.normal(0.0, 1.0, n)),
+            lambda: np.where(rng.random(n) < 0.3, rng.normal(13.0, 1.0, n), rng.normal(10.0, 1.0, n)),
     }
     print(f"\nbimodality criterion on {n_trials} samples of {n} values each:")
     for name, draw in cases.items():
@@ -140,7 +148,7 @@ def sfh_recovery(n_formed, s, link):
     }
     vol = 4.0 / 3.0 * np.pi * RADIUS_PC**3
     for name, h in cases.items():
-        table = sample(77, 10.0, n_formed, sfh=h)
+        table = sample(77, 10.0, n_formed, sfh=h, s=s)
         stars, _, lfs = luminosity_function_stage(table, s)
         fit, _, _ = population_age_stage(stars, link, s, lfs)
         e = np.asarray(summ["lookback_edges_gyr"])

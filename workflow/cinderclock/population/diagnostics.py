@@ -17,7 +17,11 @@ Modes of the bootstrap
     (Ashman, Bird & Zepf 1994, AJ 108, 2348: D > 2 is needed for a clean separation of two
     normals), the smaller component holds at least :data:`MODE_MIN_WEIGHT` of the resamples, and
     the mixture is preferred over a single normal by Delta BIC > :data:`MODE_MIN_DELTA_BIC` (10 is
-    "very strong" on the scale of Kass & Raftery 1995, JASA 90, 773; from memory). Each component's
+    "very strong" on the scale of Kass & Raftery 1995, JASA 90, 773; from memory), and the two means
+    differ by more than :data:`MODE_MIN_SEPARATION` of their mean (our threshold: the bootstrap ages
+    of a binned fit form clusters a few per cent apart as a faint bin gains or loses a star, a real
+    but irrelevant structure, smaller than the cooling model's systematic uncertainty; an interval
+    spanning both clusters then describes them honestly). Each component's
     sd is floored at :data:`MODE_SD_FLOOR` of the sample's sd so that a component cannot collapse
     on one cluster of the discreteness of a binned fit (the bootstrap ages of a binned fit cluster
     on a scale of a tenth of a Gyr as a faint bin gains or loses a star, which is not what this
@@ -41,7 +45,7 @@ WARNINGS = {
                           "standard errors: the survey limits (Vmax) or the completeness are in doubt.",
     "multimodal_bootstrap": "The bootstrap ages split into two well separated groups (two-component normal "
                             "mixture with Ashman's D > 2, the smaller group at least 10 % of the resamples, "
-                            "Delta BIC > 10): the interval is not a single range of plausible ages.",
+                            "Delta BIC > 10, means more than 5 % apart): the interval is not a single range of plausible ages.",
     "age_at_grid_edge": "The best-fit age lies at the edge of the age grid (population.fit.age_grid).",
     "sfh_poor_sampling": "The Markov chains of the star-formation-history posterior failed their convergence "
                          "diagnostics (split R-hat above 1.01 or bulk effective sample size below 400 in some "
@@ -53,6 +57,8 @@ MODE_MIN_ASHMAN_D = 2.0
 MODE_MIN_WEIGHT = 0.1
 #: BIC(one normal) - BIC(two normals) must exceed this (Kass & Raftery 1995: "very strong").
 MODE_MIN_DELTA_BIC = 10.0
+#: The two means must differ by more than this fraction of their mean (our threshold).
+MODE_MIN_SEPARATION = 0.05
 #: Floor of a component's sd, as a fraction of the sample's sd (our choice; see the module docstring).
 MODE_SD_FLOOR = 0.25
 #: EM iterations of the mixture fit.
@@ -157,11 +163,13 @@ def count_modes(x):
     locations : list of float
         The component means (bimodal) or the median.
     stats : dict
-        ``ashman_d``, ``minor_weight``, ``delta_bic`` of the two-component fit (NaN when not fitted).
+        ``ashman_d``, ``minor_weight``, ``delta_bic``, ``relative_separation`` of the two-component fit
+        (NaN when not fitted).
     """
     x = np.asarray(x, dtype=float)
     x = x[np.isfinite(x)]
-    nan = {"ashman_d": float("nan"), "minor_weight": float("nan"), "delta_bic": float("nan")}
+    nan = {"ashman_d": float("nan"), "minor_weight": float("nan"), "delta_bic": float("nan"),
+           "relative_separation": float("nan")}
     if x.size == 0:
         return 0, [], nan
     sd = float(np.std(x))
@@ -171,9 +179,10 @@ def count_modes(x):
     lnl2, w, m, s = _mixture2(x, MODE_SD_FLOOR * sd)
     stats = {"ashman_d": float(abs(m[0] - m[1]) / np.sqrt(0.5 * (s[0] ** 2 + s[1] ** 2))),
              "minor_weight": float(w.min()),
-             "delta_bic": float(2 * (lnl2 - lnl1) - 3 * np.log(x.size))}
+             "delta_bic": float(2 * (lnl2 - lnl1) - 3 * np.log(x.size)),
+             "relative_separation": float(abs(m[0] - m[1]) / max(abs(0.5 * (m[0] + m[1])), 1e-300))}
     if (stats["ashman_d"] > MODE_MIN_ASHMAN_D and stats["minor_weight"] >= MODE_MIN_WEIGHT
-            and stats["delta_bic"] > MODE_MIN_DELTA_BIC):
+            and stats["delta_bic"] > MODE_MIN_DELTA_BIC and stats["relative_separation"] > MODE_MIN_SEPARATION):
         return 2, [float(v) for v in np.sort(m)], stats
     return 1, [float(np.median(x))], stats
 
@@ -217,7 +226,8 @@ def fit_warnings(fit, v_over_vmax=None, thresholds=None):
         out.append(warning("multimodal_bootstrap", f"The bootstrap ages split into two groups near {locs} Gyr "
                                                    f"(Ashman's D = {st['ashman_d']:.1f}, smaller group "
                                                    f"{st['minor_weight']:.0%} of the resamples, Delta BIC = "
-                                                   f"{st['delta_bic']:.0f}): quote the groups, not one interval."))
+                                                   f"{st['delta_bic']:.0f}, {st['relative_separation']:.0%} "
+                                                   "apart): quote the groups, not one interval."))
     if fit.at_grid_edge:
         out.append(warning("age_at_grid_edge", f"Best-fit age {fit.age_gyr:.3f} Gyr at the edge of the grid "
                                                f"{fit.ages_grid_gyr[0]:g}-{fit.ages_grid_gyr[-1]:g} Gyr: widen "
