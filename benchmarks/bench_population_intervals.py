@@ -2,6 +2,7 @@
 M_bol-error fold removes, and the recovery of star-formation histories. Prints figures; not a test.
 
 Run:  OMP_NUM_THREADS=1 python benchmarks/bench_population_intervals.py [realisations] [progenitors]
+      [progenitors of the history samples]
 
 Samples are drawn through the package's own simulation (cinderclock.population.simulate: IMF,
 history, lifetimes, IFMR, cooling forwards), placed in a sphere of 200 pc, measured with parallax
@@ -151,14 +152,14 @@ def sfh_recovery(n_formed, s, link):
         table = sample(77, 10.0, n_formed, sfh=h, s=s)
         stars, _, lfs = luminosity_function_stage(table, s)
         fit, _, _ = population_age_stage(stars, link, s, lfs)
+        t0 = time.perf_counter()
+        sfh, _, summ = sfh_stage(stars, link, s, fit)
+        dt = time.perf_counter() - t0
         e = np.asarray(summ["lookback_edges_gyr"])
         true = np.array([(h.cumulative(e[i + 1]) - h.cumulative(e[i])) / (e[i + 1] - e[i]) for i in range(e.size - 1)])
         true *= n_formed / float(h.total()) / vol
         lf = summ["luminosity_function"]
-        t0 = time.perf_counter()
-        sfh, _, summ = sfh_stage(stars, link, s, fit)
-        dt = time.perf_counter() - t0
-        mc = lf["sampling"] if "sampling" in (lf := summ["luminosity_function"]) else {}
+        mc = lf["sampling"]
         print(f"\n{name}: {summ['stars_in_fit']} stars; history step {dt:.1f} s; {lf['draws']} draws; "
               f"bulk ESS min {lf['effective_samples']:.0f}, tail ESS min {mc.get('ess_tail_min', float('nan')):.0f}, "
               f"max R-hat {mc.get('rhat_max', float('nan')):.4f}; warnings "
@@ -181,6 +182,7 @@ def sfh_recovery(n_formed, s, link):
 def main():
     n_real = int(sys.argv[1]) if len(sys.argv) > 1 else 30
     n_formed = int(sys.argv[2]) if len(sys.argv) > 2 else 1_500_000
+    n_formed_sfh = int(sys.argv[3]) if len(sys.argv) > 3 else n_formed
     s = settings()
     link = mestel_link(COEFF)
     mode_false_alarms()
@@ -188,7 +190,7 @@ def main():
           f"magnitude errors {MAG_ERR} mag; {s['population']['bootstrap']['resamples']} bootstrap resamples")
     coverage(n_real, n_formed, s, link)
     s["population"]["measurement_errors"]["fold"] = True
-    sfh_recovery(n_formed, s, link)
+    sfh_recovery(n_formed_sfh, s, link)
 
 
 if __name__ == "__main__":
