@@ -16,11 +16,21 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
-
 from cinderclock.cooling import mestel
-from cinderclock.population.agefit import bin_sample, bootstrap_intervals, fit_age, floored, profile_loglike
-from cinderclock.population.diagnostics import (MODE_MIN_SEPARATION, count_modes, fit_warnings, poisson_deviance,
-                                                simulated_deviances)
+from cinderclock.population.agefit import (
+    bin_sample,
+    bootstrap_intervals,
+    fit_age,
+    floored,
+    profile_loglike,
+)
+from cinderclock.population.diagnostics import (
+    MODE_MIN_SEPARATION,
+    count_modes,
+    fit_warnings,
+    poisson_deviance,
+    simulated_deviances,
+)
 from cinderclock.population.model import PopulationModel
 from cinderclock.population.simulate import observe_sample, simulate_white_dwarfs
 from cinderclock.population.smear import build_fold, volume_per_mag, volume_points

@@ -12,8 +12,14 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
-
-from cinderclock.population.mcmc import ESS_MIN, RHAT_MAX, diagnostics, ess_bulk, metropolis, split_rhat
+from cinderclock.population.mcmc import (
+    ESS_MIN,
+    RHAT_MAX,
+    diagnostics,
+    ess_bulk,
+    metropolis,
+    split_rhat,
+)
 from cinderclock.population.sfh_fit import fit_sfh_lf
 
 

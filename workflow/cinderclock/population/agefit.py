@@ -379,7 +379,12 @@ def fit_age(mbol, inv_vmax, edges, ages_gyr, model, n_boot=200, seed=0, floor=DE
     -------
     AgeFit
     """
-    from .diagnostics import count_modes, goodness_of_fit, poisson_deviance, simulated_deviances
+    from .diagnostics import (
+        count_modes,
+        goodness_of_fit,
+        poisson_deviance,
+        simulated_deviances,
+    )
 
     ages = np.asarray(ages_gyr, dtype=float)
     data = bin_sample(mbol, inv_vmax, edges, mbol_err, max_sigma_mag, subdivisions)
