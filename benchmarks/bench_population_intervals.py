@@ -2,6 +2,7 @@
 M_bol-error fold removes, and the recovery of star-formation histories. Prints figures; not a test.
 
 Run:  OMP_NUM_THREADS=1 python benchmarks/bench_population_intervals.py [realisations] [progenitors]
+      [progenitors of the history samples]
 
 Samples are drawn through the package's own simulation (cinderclock.population.simulate: IMF,
 history, lifetimes, IFMR, cooling forwards), placed in a sphere of 200 pc, measured with parallax
@@ -26,6 +27,9 @@ import pandas as pd  # noqa: E402
 from cinderclock.config import load_config  # noqa: E402
 from cinderclock.cooling import mestel  # noqa: E402
 from cinderclock.population.cooling_link import mestel_link  # noqa: E402
+from cinderclock.population.agefit import BOOTSTRAP_INTERVALS, REPORTED_INTERVAL  # noqa: E402
+from cinderclock.population.diagnostics import count_modes  # noqa: E402
+from cinderclock.population.model import progenitor_choices  # noqa: E402
 from cinderclock.population.sfh import PiecewiseHistory  # noqa: E402
 from cinderclock.population.sfh_stage import sfh_stage  # noqa: E402
 from cinderclock.population.simulate import observe_sample, simulate_white_dwarfs  # noqa: E402
@@ -34,9 +38,15 @@ from cinderclock.population.stages import luminosity_function_stage, population_
 ROOT = Path(__file__).resolve().parents[1]
 COEFF = mestel.age_coefficient_yr()
 RADIUS_PC, CUT_PC, MAG_LIMIT, PLX_ERR, MAG_ERR = 200.0, 150.0, 18.0, 0.4, 0.02
-INTERVALS = {"bootstrap 68 %": ("interval68_gyr", 0.68), "bootstrap 95 %": ("interval95_gyr", 0.95),
-             "likelihood 68 % (dlnL 0.5)": ("likelihood_interval_gyr", 0.68),
+INTERVALS = {"likelihood 68 % (dlnL 0.5)": ("likelihood_interval_gyr", 0.68),
              "likelihood 95 % (dlnL 1.92)": ("likelihood_interval95_gyr", 0.95)}
+for _m in BOOTSTRAP_INTERVALS:
+    INTERVALS[f"bootstrap {_m} 68 %"] = ((_m, "interval68_gyr"), 0.68)
+    INTERVALS[f"bootstrap {_m} 95 %"] = ((_m, "interval95_gyr"), 0.95)
+
+
+def interval_of(fit, key):
+    return fit["bootstrap_intervals"][key[0]][key[1]] if isinstance(key, tuple) else fit[key]
 
 
 def lum(m, t):
@@ -54,9 +64,16 @@ def settings():
     return s
 
 
-def sample(seed, age_gyr, n_formed, sfh=None):
+SETTINGS = settings()
+
+
+def sample(seed, age_gyr, n_formed, sfh=None, s=None):
+    """A measured sample; its progenitors follow the same IFMR, lifetimes and metallicity as the fitted
+    model (``progenitor_choices`` of the settings ``s``)."""
     rng = np.random.default_rng(seed)
-    wd = simulate_white_dwarfs(rng, n_formed, age_gyr, lum, sfh=sfh)
+    c = progenitor_choices((s or SETTINGS)["population"], (s or SETTINGS)["progenitor"])
+    wd = simulate_white_dwarfs(rng, n_formed, age_gyr, lum, sfh=sfh, ifmr=c["ifmr"], lifetime=c["lifetime"],
+                               metallicity=c["metallicity"])
     o = observe_sample(rng, wd, RADIUS_PC, MAG_LIMIT, plx_err_mas=PLX_ERR, mag_err=MAG_ERR,
                        min_parallax_over_error=5.0, distance_limit_pc=CUT_PC)
     n = o["mbol"].size
@@ -71,14 +88,14 @@ def coverage(n_real, n_formed, s, link):
         n_stars = []
         t0 = time.perf_counter()
         for r in range(n_real):
-            table = sample(1000 * int(age) + r, age, n_formed)
+            table = sample(1000 * int(age) + r, age, n_formed, s=s)
             stars, _, lfs = luminosity_function_stage(table, s)
             s["population"]["measurement_errors"]["fold"] = True
             fit, _, _ = population_age_stage(stars, link, s, lfs)
             s["population"]["measurement_errors"]["fold"] = False
             unf, _, _ = population_age_stage(stars, link, s, lfs)
             for k, (key, _) in INTERVALS.items():
-                lo, hi = fit[key]
+                lo, hi = interval_of(fit, key)
                 hits[k] += lo <= age <= hi
             ages_f.append(fit["age_gyr"])
             ages_u.append(unf["age_gyr"])
@@ -99,7 +116,29 @@ def coverage(n_real, n_formed, s, link):
         print(f"  mean fitted age minus truth: folded {af.mean() - age:+.3f} +- {se(af):.3f} Gyr, not folded "
               f"{au.mean() - age:+.3f} +- {se(au):.3f} Gyr; scatter of the folded ages {af.std(ddof=1):.3f} Gyr, "
               f"mean bootstrap half-width {np.mean(widths):.3f} Gyr")
-        print(f"  finite deviance in {finite}/{n_real} fits; warnings raised: {warn or 'none'}")
+        print(f"  finite deviance in {finite}/{n_real} fits; warnings raised: {warn or 'none'} (reported bootstrap "
+              f"interval: {REPORTED_INTERVAL})")
+        print(f"  multimodal_bootstrap on these unimodal truths (false alarms): {warn.get('multimodal_bootstrap', 0)}"
+              f"/{n_real}")
+
+
+def mode_false_alarms(n_trials=1000, n=200):
+    """False-alarm rate of the bimodality criterion on unimodal samples of the bootstrap's size, and
+    its detection rate on two normals at Ashman's D = 3 (equal sds, 30 % minor share); values of order 10 (ages in Gyr: the 5 % separation threshold applies)."""
+    rng = np.random.default_rng(4)
+    cases = {
+        "normal": lambda: rng.normal(10, 1, n),
+        "skewed (gamma, shape 2)": lambda: 8 + rng.gamma(2.0, 1.0, n),
+        "heavy tails (Student t, 3 dof)": lambda: 10 + rng.standard_t(3, n),
+        "normal on a coarse grid (0.5 sd steps, like the clustered ages of a binned fit)":
+            lambda: 10 + np.round(rng.normal(0, 1, n) * 2) / 2,
+        "two normals, D = 3, minor share 30 % (detection)":
+            lambda: np.where(rng.random(n) < 0.3, rng.normal(13.0, 1.0, n), rng.normal(10.0, 1.0, n)),
+    }
+    print(f"\nbimodality criterion on {n_trials} samples of {n} values each:")
+    for name, draw in cases.items():
+        hits = sum(count_modes(draw())[0] == 2 for _ in range(n_trials))
+        print(f"  {name:80s} flagged {hits:5d}/{n_trials} = {hits / n_trials:6.2%}")
 
 
 def sfh_recovery(n_formed, s, link):
@@ -110,16 +149,21 @@ def sfh_recovery(n_formed, s, link):
     }
     vol = 4.0 / 3.0 * np.pi * RADIUS_PC**3
     for name, h in cases.items():
-        table = sample(77, 10.0, n_formed, sfh=h)
+        table = sample(77, 10.0, n_formed, sfh=h, s=s)
         stars, _, lfs = luminosity_function_stage(table, s)
         fit, _, _ = population_age_stage(stars, link, s, lfs)
+        t0 = time.perf_counter()
         sfh, _, summ = sfh_stage(stars, link, s, fit)
+        dt = time.perf_counter() - t0
         e = np.asarray(summ["lookback_edges_gyr"])
         true = np.array([(h.cumulative(e[i + 1]) - h.cumulative(e[i])) / (e[i + 1] - e[i]) for i in range(e.size - 1)])
         true *= n_formed / float(h.total()) / vol
         lf = summ["luminosity_function"]
-        print(f"\n{name}: {summ['stars_in_fit']} stars, effective samples {lf['effective_samples']:.0f} of "
-              f"{lf['draws']}")
+        mc = lf["sampling"]
+        print(f"\n{name}: {summ['stars_in_fit']} stars; history step {dt:.1f} s; {lf['draws']} draws; "
+              f"bulk ESS min {lf['effective_samples']:.0f}, tail ESS min {mc.get('ess_tail_min', float('nan')):.0f}, "
+              f"max R-hat {mc.get('rhat_max', float('nan')):.4f}; warnings "
+              f"{[w['code'] for w in summ['warnings']] or 'none'}")
         print("  lookback (Gyr)   true rate   posterior mean +- sd       pull   inside 16-84 %")
         inside = 0
         for i in range(e.size - 1):
@@ -138,13 +182,15 @@ def sfh_recovery(n_formed, s, link):
 def main():
     n_real = int(sys.argv[1]) if len(sys.argv) > 1 else 30
     n_formed = int(sys.argv[2]) if len(sys.argv) > 2 else 1_500_000
+    n_formed_sfh = int(sys.argv[3]) if len(sys.argv) > 3 else n_formed
     s = settings()
     link = mestel_link(COEFF)
+    mode_false_alarms()
     print(f"{n_real} realisations per age, {n_formed} progenitors formed per sample; parallax errors {PLX_ERR} mas, "
           f"magnitude errors {MAG_ERR} mag; {s['population']['bootstrap']['resamples']} bootstrap resamples")
     coverage(n_real, n_formed, s, link)
     s["population"]["measurement_errors"]["fold"] = True
-    sfh_recovery(n_formed, s, link)
+    sfh_recovery(n_formed_sfh, s, link)
 
 
 if __name__ == "__main__":

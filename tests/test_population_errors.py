@@ -16,11 +16,21 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
-
 from cinderclock.cooling import mestel
-from cinderclock.population.agefit import bin_sample, fit_age, floored, profile_loglike
-from cinderclock.population.diagnostics import (count_modes, fit_warnings, poisson_deviance,
-                                                simulated_deviances)
+from cinderclock.population.agefit import (
+    bin_sample,
+    bootstrap_intervals,
+    fit_age,
+    floored,
+    profile_loglike,
+)
+from cinderclock.population.diagnostics import (
+    MODE_MIN_SEPARATION,
+    count_modes,
+    fit_warnings,
+    poisson_deviance,
+    simulated_deviances,
+)
 from cinderclock.population.model import PopulationModel
 from cinderclock.population.simulate import observe_sample, simulate_white_dwarfs
 from cinderclock.population.smear import build_fold, volume_per_mag, volume_points
@@ -155,12 +165,42 @@ def test_simulated_p_values_are_uniform_under_the_model():
 
 @pytest.mark.parametrize("seed", range(5))
 def test_mode_count(seed):
-    # a normal sample has one mode; two normals 8 sd apart have two (normal-reference bandwidth,
-    # Silverman 1986 eq. 3.28)
+    # two-normal mixture criterion (Ashman, Bird & Zepf 1994, AJ 108, 2348: D > 2 for a clean
+    # separation): one normal, a skewed and a heavy-tailed sample and a normal sample rounded to a
+    # coarse grid (the clustered ages of a binned fit) are unimodal; two normals 8 sd apart
+    # (D = 8, 40 % minor share, 20 % apart) are bimodal, found at their centres
     rng = np.random.default_rng(seed)
     assert count_modes(rng.normal(9.0, 0.3, 200))[0] == 1
-    n, where = count_modes(np.concatenate([rng.normal(3.5, 0.1, 120), rng.normal(4.3, 0.1, 80)]))
-    assert n == 2 and where[0] == pytest.approx(3.5, abs=0.1) and where[1] == pytest.approx(4.3, abs=0.1)
+    assert count_modes(9.0 + rng.standard_t(3, 200) * 0.3)[0] == 1
+    assert count_modes(9.0 + 0.3 * np.round(rng.normal(0, 1, 200) * 2) / 2)[0] == 1
+    n, where, st = count_modes(np.concatenate([rng.normal(3.5, 0.1, 120), rng.normal(4.3, 0.1, 80)]))
+    assert n == 2 and where[0] == pytest.approx(3.5, abs=0.05) and where[1] == pytest.approx(4.3, abs=0.05)
+    assert st["ashman_d"] == pytest.approx(8.0, rel=0.25) and st["minor_weight"] == pytest.approx(0.4, abs=0.1)
+
+
+def test_mode_count_ignores_clusters_closer_than_the_threshold():
+    # two tight clusters 3 % apart (D ~ 6): real structure but below MODE_MIN_SEPARATION (5 %)
+    rng = np.random.default_rng(9)
+    n, _, st = count_modes(np.concatenate([rng.normal(8.00, 0.04, 120), rng.normal(8.24, 0.04, 80)]))
+    assert st["ashman_d"] > 2 and st["relative_separation"] < MODE_MIN_SEPARATION and n == 1
+
+
+def test_bootstrap_interval_constructions():
+    # Bootstrap estimates normal about T + b with sd s (B large): the percentile interval is
+    # T + b +- s; the bias-corrected one is T - b +- s (z0 = -b / s, percentiles Phi(2 z0 +- 1);
+    # Efron & Tibshirani 1993, An Introduction to the Bootstrap, ch. 14: it removes the median bias)
+    # and so is the basic one (2 T - q84, 2 T - q16; Davison & Hinkley 1997, from memory)
+    from scipy.stats import norm
+
+    t, b, s = 8.0, 0.1, 0.2
+    boot = norm.ppf((np.arange(20000) + 0.5) / 20000, t + b, s)
+    iv = bootstrap_intervals(boot, t, boot - 2 * b)
+    assert iv["percentile"][0] == pytest.approx((t + b - s, t + b + s), abs=2e-3)
+    assert iv["bias_corrected"][0] == pytest.approx((t - b - s, t - b + s), abs=2e-3)
+    assert iv["basic"][0] == pytest.approx((t - b - s, t - b + s), abs=2e-3)
+    assert iv["bias_corrected"][1] == pytest.approx((t - b - 1.96 * s, t - b + 1.96 * s), abs=3e-3)
+    assert iv["parametric"][0] == pytest.approx((t - b - s, t - b + s), abs=2e-3)
+    assert np.isnan(bootstrap_intervals([], t)["percentile"][0][0])
 
 
 def test_named_warnings(model):
@@ -174,6 +214,7 @@ def test_named_warnings(model):
     assert [w["code"] for w in fit_warnings(fit, {"mean": 0.5, "sigma": 0.01, "z": 0.0, "n": 800})] in (
         [], ["poor_fit"], ["multimodal_bootstrap"])
     fit.bootstrap_modes, fit.bootstrap_mode_ages_gyr = 2, [3.5, 3.9]
+    fit.bootstrap_mode_stats = {"ashman_d": 3.0, "minor_weight": 0.3, "delta_bic": 40.0, "relative_separation": 0.1}
     assert "multimodal_bootstrap" in [w["code"] for w in fit_warnings(fit)]
 
 

@@ -51,7 +51,8 @@ def star_formation_history(sfh, summary, stem):
         ess = (summary.get("luminosity_function") or {}).get("effective_samples")
         if ess is not None:
             ax.text(0.98, 0.97, f"prior: {summary['luminosity_function']['smoothing_dex']:g} dex between bins\n"
-                                f"effective samples {ess:.0f}", transform=ax.transAxes, ha="right", va="top",
+                                f"bulk ESS >= {ess:.0f}, R-hat <= "
+                                f"{(summary['luminosity_function'].get('sampling') or {}).get('rhat_max', float('nan')):.3f}", transform=ax.transAxes, ha="right", va="top",
                     fontsize=8, color=INK)
         if ax.get_legend_handles_labels()[0]:
             ax.legend(frameon=True, framealpha=0.9, loc="upper left", fontsize=8)

@@ -134,9 +134,15 @@ def sfh_stage(stars, cooling_link, settings, age_fit=None, final=None):
     fits = [fit]
     summary = base | {"fitted": True, "methods": ["luminosity_function"], "measurement_errors_folded": data.folded,
                       "luminosity_function": fit.summary()}
-    if fit.effective_samples < 0.05 * fit.draws:
-        summary["warnings"].append(warning("sfh_poor_sampling", f"Effective sample size {fit.effective_samples:.0f} "
-                                                                f"of {fit.draws} draws."))
+    mc = fit.extra["sampling"]
+    if not mc["passed"]:
+        summary["warnings"].append(warning("sfh_poor_sampling", f"Largest split R-hat {mc['rhat_max']:.3f} (threshold "
+                                                                f"{mc['rhat_threshold']}), smallest bulk / tail "
+                                                                f"effective sample size {mc['ess_bulk_min']:.0f} / "
+                                                                f"{mc['ess_tail_min']:.0f} (threshold "
+                                                                f"{mc['ess_threshold']:.0f}) over {mc['chains']} chains "
+                                                                f"and {fit.draws} draws: raise "
+                                                                "population.sfh_inference.draws."))
     t = (age_fit or {}).get("age_gyr")
     if t is not None:
         const = data.model(lambda e, a: model.luminosity_function(e, a), np.array([float(t)]))[0]

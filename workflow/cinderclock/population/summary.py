@@ -131,9 +131,11 @@ def _sfh_html(sfh_summary):
     for method in sfh_summary.get("methods", []):
         f = sfh_summary[method]
         label = {"luminosity_function": "From the luminosity function (Poisson likelihood, smoothness prior of "
-                                        f"{f.get('smoothing_dex')} dex between bins; posterior by importance "
-                                        f"sampling, {f.get('effective_samples', 0):.0f} effective of "
-                                        f"{f.get('draws')} draws)",
+                                        f"{f.get('smoothing_dex')} dex between bins; posterior by "
+                                        f"{(f.get('sampling') or {}).get('chains', '?')} Markov chains, "
+                                        f"{f.get('draws')} draws, smallest bulk effective sample size "
+                                        f"{f.get('effective_samples', 0):.0f}, largest split R-hat "
+                                        f"{(f.get('sampling') or {}).get('rhat_max', float('nan')):.3f})",
                  "total_ages": "From the per-star total ages (bootstrap over stars; "
                                f"{f.get('stars_used')} stars)"}.get(method, method)
         parts.append(f"<p>{_e(label)}. Rates in {_e(unit)} ({_e(sfh_summary.get('rate_meaning', ''))}).</p>")
