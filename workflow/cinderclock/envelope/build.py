@@ -29,6 +29,9 @@ CORE_NODES_MSUN = (0.10, 0.25, 0.45, 0.7, 0.95, 1.15, 1.28, 1.36)
 #: The integration runs to this factor times the zero-temperature core's pressure at Dm = DM_CORE M
 #: (the end point is then interpolated inside the integrated run).
 P_END_FACTOR = 3.0
+#: Starting radii (in units of R_0) tried in turn for stars whose envelope cannot be integrated
+#: at R_0 itself (hot stars, whose envelope at R_0 would be too massive).
+START_FACTORS = (1.15, 1.3, 1.5, 1.8)
 #: Secant iterations at most; each pass integrates only the stars not yet converged.
 N_ITERATIONS = 16
 #: Target |r_base - r_core| / R of the iteration, and the largest residual accepted in a table
@@ -134,6 +137,13 @@ def solve_grid(masses_msun, teff_k, atmosphere="H", q_h=1e-4, q_he=1e-2, core="C
     ra = r0_2.copy()
     fa, _ = f(ra[everyone], everyone)
     fa = fa.reshape(m2.shape)
+    for factor in START_FACTORS:         # stars whose envelope fails at R_0 (hot): larger starts
+        retry = ~np.isfinite(fa)
+        if not retry.any():
+            break
+        fr, _ = f(r0_2[retry] * factor, retry)
+        ra[retry] = np.where(np.isfinite(fr), r0_2[retry] * factor, ra[retry])
+        fa[retry] = fr
     rb = ra - np.nan_to_num(fa)
     fb = np.full(m2.shape, np.nan)
     out = None

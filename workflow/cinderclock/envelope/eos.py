@@ -167,7 +167,7 @@ def _eta(n_e, t):
 
 
 #: Grid of the tabulated equation of state (log10 T in K, log10 P in dyn cm^-2).
-LOG_T_GRID = np.round(np.arange(3.20, 8.40 + 1e-9, 0.025), 6)
+LOG_T_GRID = np.round(np.arange(3.20, 8.70 + 1e-9, 0.025), 6)
 LOG_P_GRID = np.round(np.arange(0.0, 26.7 + 1e-9, 0.06), 6)
 _LOG_RHO_NATIVE = np.arange(-15.0, 7.6, 0.04)
 
