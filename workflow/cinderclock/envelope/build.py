@@ -1,13 +1,16 @@
 """Solve the envelope of every (mass, Teff) of a grid at once: photospheric radius by secant iteration.
 
 For each star the photospheric radius R is adjusted until the envelope integrated inward from the
-photosphere (:func:`~cinderclock.envelope.structure.integrate`) reaches the base of the helium
-layer, Dm = q_He M, at the radius that the zero-temperature core (Chandrasekhar equation with the
-Salpeter Coulomb term, :func:`cinderclock.massradius.chandrasekhar.structure_profile`) has at
-mass coordinate (1 - q_He) M. One fixed-point step and then secant steps, vectorised over the stars
+photosphere (:func:`~cinderclock.envelope.structure.integrate`), through the hydrogen and helium
+layers and on through the core material (:mod:`~.mantle`), reaches the depth Dm = DM_CORE M
+(:data:`~cinderclock.envelope.structure.DM_CORE`) at the radius that the zero-temperature core
+(Chandrasekhar equation with the Salpeter Coulomb term,
+:func:`cinderclock.massradius.chandrasekhar.structure_profile`) has at mass coordinate
+(1 - DM_CORE) M. One fixed-point step and then secant steps, vectorised over the stars
 not yet converged (each to |r_base - r_core| / R < 1e-7, so radii are smooth in Teff at the 1e-7
 level); stars that do not converge, or whose envelope cannot be bound (hot, low-mass stars whose
-radius runs away), are NaN.
+radius runs away), are NaN. Known limit: below ~3,700 K at 0.45-0.65 Msun r_base(R) of the
+convective envelopes has small jumps and several roots, so radii there scatter by ~1 % in Teff.
 """
 
 from __future__ import annotations

@@ -6,7 +6,7 @@ poor below Teff ~ 5,000-6,000 K, where the atmosphere is convective and non-grey
 2012, A&A 546, A119): cool rows carry that caution.
 
 Interior (independent variable s = ln P, ``N_INTERIOR`` RK4 steps from the photosphere to beyond
-the base of the helium layer), with the mass above, Dm = M - m, as ln Dm:
+the base of the helium layer, or on through the core material to Dm = DM_CORE M), with the mass above, Dm = M - m, as ln Dm:
 
     dr / ds     = -P r^2 / (G m rho)
     d ln Dm / ds = 4 pi r^4 P / (G m Dm)
