@@ -48,6 +48,13 @@ LAYER_WIDTH = 0.1
 #: rises: see :mod:`~.mantle`; at this depth the rise of log T over the last decade of pressure is
 #: the ``dlog_t_decade`` diagnostic).
 DM_CORE = 0.3
+#: Floor on delta = -(d ln rho / d ln T)_P and nabla_ad in the structure equations. The hard-sphere
+#: pressure ionization of :mod:`~.eos` gives small (T, P) islands with delta < 0 and nabla_ad < 0
+#: (H near 1e5 K and 3 g cm^-3, He near 6e5 K and 100 g cm^-3), where mixing-length theory is
+#: undefined (U imaginary): without a floor the gradient jumps to nabla_rad there, T leaps by
+#: 1-2 dex in one step, and the radius solve gets several roots and NaN windows. The floor, 0.05
+#: (below the values around the islands, 0.1-0.3), is a numerical guard of ours, not physics.
+THERMO_FLOOR = 0.05
 
 
 def _blend(a, b, w):
@@ -122,7 +129,7 @@ def atmosphere(lookup, teff, logg, layer):
 
 
 def integrate(lookup, mass_g, radius_cm, teff, q_h, q_he, alpha, top_layer, pressure_factor=30.0,
-              dm_core=None, ln_p_end=None):
+              dm_core=None, ln_p_end=None, return_history=False):
     """Integrate the envelopes of all stars from the photosphere to past Dm = q_He M, or, with
     ``dm_core``, on through the core material (the last layer of ``lookup``) to Dm = dm_core M.
 
@@ -142,6 +149,8 @@ def integrate(lookup, mass_g, radius_cm, teff, q_h, q_he, alpha, top_layer, pres
     ln_p_end : array, optional
         ln P (dyn cm^-2) where the integration stops (beyond the end point); default from the
         thin-shell pressure at the helium base times ``pressure_factor``.
+    return_history : bool
+        Return only the integrated run, array (n_step + 1, 4, ...) of ln T, r, ln Dm, ln P.
 
     Returns
     -------
@@ -189,9 +198,12 @@ def integrate(lookup, mass_g, radius_cm, teff, q_h, q_he, alpha, top_layer, pres
         hp = p / (rho * g_loc)
         ell = alpha * hp
         cp = 10.0 ** v["log_cp"]
+        # guard against the equation of state's anomaly at pressure ionization (see THERMO_FLOOR)
+        delta = np.maximum(v["delta"], THERMO_FLOOR)
+        nabla_ad = np.maximum(v["nabla_ad"], THERMO_FLOOR)
         with np.errstate(invalid="ignore", divide="ignore"):
-            u = 3.0 * A_RAD * C_LIGHT * t**3 / (cp * rho**2 * kap * ell**2) * np.sqrt(8.0 * hp / (g_loc * v["delta"]))
-        nab, conv = temperature_gradient(nab_rad, v["nabla_ad"], np.nan_to_num(u, nan=1e30))
+            u = 3.0 * A_RAD * C_LIGHT * t**3 / (cp * rho**2 * kap * ell**2) * np.sqrt(8.0 * hp / (g_loc * delta))
+        nab, conv = temperature_gradient(nab_rad, nabla_ad, np.nan_to_num(u, nan=1e30))
         dr = -p * r * r / (G * m * rho)
         dlndm = 4.0 * np.pi * r**4 * p / (G * m * np.exp(ln_dm))
         return np.stack([nab, dr, dlndm]), conv, v.get("eta")
@@ -214,6 +226,8 @@ def integrate(lookup, mass_g, radius_cm, teff, q_h, q_he, alpha, top_layer, pres
         ln_p = ln_p + h
         hist.append(np.concatenate([y, ln_p[None]]))
     hist = np.stack(hist)                                   # (n_step, 4, ...)
+    if return_history:                                       # diagnostics: ln T, r, ln Dm, ln P per step
+        return hist
 
     def at_depth(ln_dm_target):
         """State (ln T, r, ln Dm, ln P) interpolated at ln Dm = ln_dm_target, and a validity mask."""
