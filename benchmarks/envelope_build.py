@@ -9,10 +9,10 @@ warnings.filterwarnings("ignore")
 t0 = time.perf_counter()
 from cinderclock.envelope.structure import layer_stack  # noqa: E402
 
-layer_stack(("H", "He"))
-layer_stack(("He",))
+layer_stack(("H", "He", "core:CO"))
+layer_stack(("He", "core:CO"))
 t1 = time.perf_counter()
-print(f"equation-of-state and opacity tables (H, He): {t1 - t0:6.1f} s")
+print(f"equation-of-state and opacity tables (H, He, C/O core material): {t1 - t0:6.1f} s")
 from cinderclock.envelope import build_envelope_table  # noqa: E402
 
 da = build_envelope_table(atmosphere="H")

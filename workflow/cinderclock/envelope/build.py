@@ -1,13 +1,16 @@
 """Solve the envelope of every (mass, Teff) of a grid at once: photospheric radius by secant iteration.
 
 For each star the photospheric radius R is adjusted until the envelope integrated inward from the
-photosphere (:func:`~cinderclock.envelope.structure.integrate`) reaches the base of the helium
-layer, Dm = q_He M, at the radius that the zero-temperature core (Chandrasekhar equation with the
-Salpeter Coulomb term, :func:`cinderclock.massradius.chandrasekhar.structure_profile`) has at
-mass coordinate (1 - q_He) M. One fixed-point step and then secant steps, vectorised over the stars
+photosphere (:func:`~cinderclock.envelope.structure.integrate`), through the hydrogen and helium
+layers and on through the core material (:mod:`~.mantle`), reaches the depth Dm = DM_CORE M
+(:data:`~cinderclock.envelope.structure.DM_CORE`) at the radius that the zero-temperature core
+(Chandrasekhar equation with the Salpeter Coulomb term,
+:func:`cinderclock.massradius.chandrasekhar.structure_profile`) has at mass coordinate
+(1 - DM_CORE) M. One fixed-point step and then secant steps, vectorised over the stars
 not yet converged (each to |r_base - r_core| / R < 1e-7, so radii are smooth in Teff at the 1e-7
 level); stars that do not converge, or whose envelope cannot be bound (hot, low-mass stars whose
-radius runs away), are NaN.
+radius runs away), are NaN. Known limit: below ~3,700 K at 0.45-0.65 Msun r_base(R) of the
+convective envelopes has small jumps and several roots, so radii there scatter by ~1 % in Teff.
 """
 
 from __future__ import annotations
@@ -18,7 +21,7 @@ import numpy as np
 
 from ..constants import L_SUN_W, M_SUN_KG, R_SUN_M
 from .opacity import SIGMA_SB
-from .structure import G, Lookup, integrate, layer_stack
+from .structure import DM_CORE, G, Lookup, integrate, layer_stack
 
 M_SUN_G = M_SUN_KG * 1e3
 R_SUN_CM = R_SUN_M * 1e2
@@ -26,6 +29,12 @@ R_SUN_CM = R_SUN_M * 1e2
 #: radius ratio r(1 - q_He) / R_0 is interpolated by a cubic spline in ln M (R_0 itself comes
 #: from a dense zero-temperature sequence).
 CORE_NODES_MSUN = (0.10, 0.25, 0.45, 0.7, 0.95, 1.15, 1.28, 1.36)
+#: The integration runs to this factor times the zero-temperature core's pressure at Dm = DM_CORE M
+#: (the end point is then interpolated inside the integrated run).
+P_END_FACTOR = 3.0
+#: Starting radii (in units of R_0) tried in turn for stars whose envelope cannot be integrated
+#: at R_0 itself (hot stars, whose envelope at R_0 would be too massive).
+START_FACTORS = (1.15, 1.3, 1.5, 1.8)
 #: Secant iterations at most; each pass integrates only the stars not yet converged.
 N_ITERATIONS = 16
 #: Target |r_base - r_core| / R of the iteration, and the largest residual accepted in a table
@@ -34,19 +43,21 @@ TOLERANCE = 1e-7
 ACCEPT = 3e-3
 
 
-def core_radii(masses_msun, q_he, core):
-    """Zero-temperature total radius R_0 and radius at mass coordinate (1 - q_He) M, in Rsun."""
-    s0, sr = _core_splines(float(q_he), core)
+def core_radii(masses_msun, depth, core):
+    """Zero-temperature total radius R_0 and radius at mass coordinate (1 - depth) M, in Rsun, and
+    log10 of the pressure (dyn cm^-2) there."""
+    s0, sr, sp = _core_splines(float(depth), core)
     m = np.asarray(masses_msun, dtype=float)
     ok = (m >= CORE_NODES_MSUN[0]) & (m <= CORE_NODES_MSUN[-1])
     lm = np.log(np.where(ok, m, 1.0))
     big_r0 = np.where(ok, np.exp(s0(lm)), np.nan)
-    return big_r0, big_r0 * sr(lm)
+    return big_r0, big_r0 * sr(lm), np.where(ok, sp(lm), np.nan)
 
 
 @lru_cache(maxsize=8)
-def _core_splines(q_he, core):
-    """Splines in ln M of ln R_0 (dense zero-temperature sequence) and of r(1 - q_He) / R_0 (profiles)."""
+def _core_splines(depth, core):
+    """Splines in ln M of ln R_0 (dense zero-temperature sequence), of r(1 - depth) / R_0 and of
+    log10 P(1 - depth) (profiles)."""
     from scipy.interpolate import CubicSpline
 
     from ..composition import core_composition
@@ -56,11 +67,12 @@ def _core_splines(q_he, core):
     seq = zero_temperature_sequence(comp.mu_e, comp.coulomb_charge, True, np.linspace(2.5, 11.5, 361))
     s0 = CubicSpline(np.log(seq["mass_msun"]), np.log(seq["radius_rsun"]))
     nodes = np.array(CORE_NODES_MSUN)
-    ratio = []
+    ratio, log_p = [], []
     for m in nodes:                                   # loop over a few core models, not over stars
         p = structure_profile(float(m), comp.mu_e, comp.coulomb_charge, coulomb=True, n_points=600)
-        ratio.append(np.interp(1.0 - q_he, p["mass_fraction"], p["radius_rsun"]) / p["total_radius_rsun"])
-    return s0, CubicSpline(np.log(nodes), np.array(ratio))
+        ratio.append(np.interp(1.0 - depth, p["mass_fraction"], p["radius_rsun"]) / p["total_radius_rsun"])
+        log_p.append(np.log10(np.interp(1.0 - depth, p["mass_fraction"], p["pressure_cgs"])))
+    return s0, CubicSpline(np.log(nodes), np.array(ratio)), CubicSpline(np.log(nodes), np.array(log_p))
 
 
 def _bisect_fallback(f, best_r, best_rel, out, width=0.05, n_steps=20):
@@ -107,24 +119,34 @@ def solve_grid(masses_msun, teff_k, atmosphere="H", q_h=1e-4, q_he=1e-2, core="C
     masses = np.asarray(masses_msun, dtype=float)
     teffs = np.asarray(teff_k, dtype=float)
     if atmosphere == "H" and q_h > 0:
-        symbols, top = ("H", "He"), 0
+        symbols, top = ("H", "He", f"core:{core}"), 0
     else:
-        symbols, top, q_h = ("He",), 0, 0.0
+        symbols, top, q_h = ("He", f"core:{core}"), 0, 0.0
     lookup = Lookup(layer_stack(symbols))
-    r0, r_core = core_radii(masses, q_he, core)
+    r0, r_core, log_p_core = core_radii(masses, DM_CORE, core)
     m2, t2 = np.meshgrid(masses, teffs, indexing="ij")
     r0_2 = np.broadcast_to(r0[:, None], m2.shape) * R_SUN_CM
     rc_2 = np.broadcast_to(r_core[:, None], m2.shape) * R_SUN_CM
     mass_g = m2 * M_SUN_G
 
+    ln_p_end = np.broadcast_to(((log_p_core + np.log10(P_END_FACTOR)) * np.log(10.0))[:, None], m2.shape)
+
     def f(radius, sel):
-        out = integrate(lookup, mass_g[sel], radius, t2[sel], q_h, q_he, alpha, top)
+        out = integrate(lookup, mass_g[sel], radius, t2[sel], q_h, q_he, alpha, top, dm_core=DM_CORE,
+                        ln_p_end=ln_p_end[sel])
         return out["r_base"] - rc_2[sel], out
 
     everyone = np.ones(m2.shape, dtype=bool)
     ra = r0_2.copy()
     fa, _ = f(ra[everyone], everyone)
     fa = fa.reshape(m2.shape)
+    for factor in START_FACTORS:         # stars whose envelope fails at R_0 (hot): larger starts
+        retry = ~np.isfinite(fa)
+        if not retry.any():
+            break
+        fr, _ = f(r0_2[retry] * factor, retry)
+        ra[retry] = np.where(np.isfinite(fr), r0_2[retry] * factor, ra[retry])
+        fa[retry] = fr
     rb = ra - np.nan_to_num(fa)
     fb = np.full(m2.shape, np.nan)
     out = None
@@ -172,6 +194,8 @@ def solve_grid(masses_msun, teff_k, atmosphere="H", q_h=1e-4, q_he=1e-2, core="C
         "log_dm_conv": out["log_dm_conv"] * nan,
         "eta_conv": out["eta_conv"] * nan,
         "eta_base": out["eta_base"] * nan,
+        "log_t_he_base": out["log_t_he_base"] * nan,
+        "dlog_t_decade": out["dlog_t_decade"] * nan,
         "log_p_photosphere": out["log_p_photosphere"] * nan,
         "residual": resid,
     }

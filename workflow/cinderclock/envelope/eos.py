@@ -167,8 +167,8 @@ def _eta(n_e, t):
 
 
 #: Grid of the tabulated equation of state (log10 T in K, log10 P in dyn cm^-2).
-LOG_T_GRID = np.round(np.arange(3.20, 8.40 + 1e-9, 0.025), 6)
-LOG_P_GRID = np.round(np.arange(0.0, 25.5 + 1e-9, 0.06), 6)
+LOG_T_GRID = np.round(np.arange(3.20, 8.70 + 1e-9, 0.025), 6)
+LOG_P_GRID = np.round(np.arange(0.0, 26.7 + 1e-9, 0.06), 6)
 _LOG_RHO_NATIVE = np.arange(-15.0, 7.6, 0.04)
 
 
@@ -191,8 +191,10 @@ class EosTable:
     state: dict
 
 
-def _invert_rows(log_p_native):
-    """log rho on LOG_P_GRID for every row of a (n_T, n_rho) table of log P."""
+def _invert_rows(log_p_native, log_rho_native=None):
+    """log rho on LOG_P_GRID for every row of a (n_T, n_rho) table of log P (on ``log_rho_native``,
+    default the envelope layers' native density grid)."""
+    log_rho_native = _LOG_RHO_NATIVE if log_rho_native is None else log_rho_native
     out = np.full((log_p_native.shape[0], LOG_P_GRID.size), np.nan)
     for i, row in enumerate(log_p_native):          # loop over temperature rows, not stars
         ok = np.isfinite(row)
@@ -200,7 +202,7 @@ def _invert_rows(log_p_native):
         keep = ok & (row >= run) & np.concatenate([[True], row[1:] > run[:-1]])
         if keep.sum() < 2:
             continue
-        lp, lr = row[keep], _LOG_RHO_NATIVE[keep]
+        lp, lr = row[keep], log_rho_native[keep]
         inside = (LOG_P_GRID >= lp[0]) & (LOG_P_GRID <= lp[-1])
         out[i, inside] = np.interp(LOG_P_GRID[inside], lp, lr)
     return out

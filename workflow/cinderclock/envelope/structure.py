@@ -6,13 +6,16 @@ poor below Teff ~ 5,000-6,000 K, where the atmosphere is convective and non-grey
 2012, A&A 546, A119): cool rows carry that caution.
 
 Interior (independent variable s = ln P, ``N_INTERIOR`` RK4 steps from the photosphere to beyond
-the base of the helium layer), with the mass above, Dm = M - m, as ln Dm:
+the base of the helium layer, or on through the core material to Dm = DM_CORE M), with the mass above, Dm = M - m, as ln Dm:
 
     dr / ds     = -P r^2 / (G m rho)
     d ln Dm / ds = 4 pi r^4 P / (G m Dm)
     d ln T / ds  = nabla   (radiative, or mixing-length where Schwarzschild says convective)
 
-with constant luminosity L = 4 pi R^2 sigma Teff^4 and nabla_rad = 3 kappa L P / (16 pi a c G m T^4).
+with the luminosity L_r = L m / M (L = 4 pi R^2 sigma Teff^4) and nabla_rad = 3 kappa L_r P /
+(16 pi a c G m T^4): the heat flows out of the whole core, released at a rate per unit mass taken
+uniform (isothermal core of uniform heat capacity; neutrino losses, which take heat from the
+centre of hot stars, are left out -- our approximation). In the envelope m / M = 1 to 1e-2.
 The layer (H or He) is chosen from Dm: hydrogen while Dm < q_H M. Every step works on arrays of
 all stars at once; the only Python loops are over integration steps.
 """
@@ -40,6 +43,18 @@ _LN10 = np.log(10.0)
 #: in mass -- narrower than diffusive-equilibrium profiles of real DA envelopes (our numerical
 #: choice; it keeps the integrand smooth inside RK4 steps).
 LAYER_WIDTH = 0.1
+#: Depth Dm / M of the end point in the core material, where T is taken as T_c and the radius is
+#: matched to the zero-temperature core (below the helium layer the temperature of hot stars still
+#: rises: see :mod:`~.mantle`; at this depth the rise of log T over the last decade of pressure is
+#: the ``dlog_t_decade`` diagnostic).
+DM_CORE = 0.3
+#: Floor on delta = -(d ln rho / d ln T)_P and nabla_ad in the structure equations. The hard-sphere
+#: pressure ionization of :mod:`~.eos` gives small (T, P) islands with delta < 0 and nabla_ad < 0
+#: (H near 1e5 K and 3 g cm^-3, He near 6e5 K and 100 g cm^-3), where mixing-length theory is
+#: undefined (U imaginary): without a floor the gradient jumps to nabla_rad there, T leaps by
+#: 1-2 dex in one step, and the radius solve gets several roots and NaN windows. The floor, 0.05
+#: (below the values around the islands, 0.1-0.3), is a numerical guard of ours, not physics.
+THERMO_FLOOR = 0.05
 
 
 def _blend(a, b, w):
@@ -49,9 +64,14 @@ def _blend(a, b, w):
 
 @lru_cache(maxsize=2)
 def layer_stack(symbols):
-    """Stacked tables, shape (n_field, n_layer, n_T, n_P), of the layers ``symbols`` (top first)."""
+    """Stacked tables, shape (n_field, n_layer, n_T, n_P), of the layers ``symbols`` (top first):
+    "H", "He", or "core:<key>" for the fully ionised core material of :mod:`~.mantle`."""
     out = []
     for sym in symbols:
+        if sym.startswith("core:"):                     # the core material below the helium layer
+            from .mantle import mantle_fields
+            out.append(mantle_fields(sym[5:]))
+            continue
         eos = eos_table(sym)
         lk, lr, lc = opacity_grid(eos)
         with np.errstate(invalid="ignore", divide="ignore"):
@@ -108,8 +128,10 @@ def atmosphere(lookup, teff, logg, layer):
     return ln_p, temp(lt[-1])
 
 
-def integrate(lookup, mass_g, radius_cm, teff, q_h, q_he, alpha, top_layer, pressure_factor=30.0):
-    """Integrate the envelopes of all stars from the photosphere to past Dm = q_He M.
+def integrate(lookup, mass_g, radius_cm, teff, q_h, q_he, alpha, top_layer, pressure_factor=30.0,
+              dm_core=None, ln_p_end=None, return_history=False):
+    """Integrate the envelopes of all stars from the photosphere to past Dm = q_He M, or, with
+    ``dm_core``, on through the core material (the last layer of ``lookup``) to Dm = dm_core M.
 
     Parameters
     ----------
@@ -122,46 +144,66 @@ def integrate(lookup, mass_g, radius_cm, teff, q_h, q_he, alpha, top_layer, pres
         Mixing-length parameter.
     top_layer : int
         Layer index of the top (0 for the first table of the stack).
+    dm_core : float, optional
+        Depth Dm / M of the end point in the core (None: end at the base of the helium layer).
+    ln_p_end : array, optional
+        ln P (dyn cm^-2) where the integration stops (beyond the end point); default from the
+        thin-shell pressure at the helium base times ``pressure_factor``.
+    return_history : bool
+        Return only the integrated run, array (n_step + 1, 4, ...) of ln T, r, ln Dm, ln P.
 
     Returns
     -------
-    dict of arrays (values at Dm = q_He M): ``r_base`` (cm), ``log_tc`` (K), ``eta_base``, and
+    dict of arrays (values at the end point, Dm = q_He M or dm_core M): ``r_base`` (cm),
+    ``log_tc`` (K), ``eta_base``, ``log_t_he_base`` (K, at Dm = q_He M), ``dlog_t_decade``
+    (rise of log T over the last decade of pressure above the end point), and
     diagnostics ``log_dm_conv`` (log10 Dm/M at the deepest convective point, NaN if none),
     ``eta_conv`` (degeneracy there), ``log_p_base``.
     """
     lum = 4.0 * np.pi * radius_cm**2 * SIGMA_SB * teff**4
     logg = np.log10(G * mass_g / radius_cm**2)
     ln_p0, ln_t0 = atmosphere(lookup, teff, logg, np.full(teff.shape, top_layer))
-    ln_p_end = np.log(pressure_factor * G * mass_g**2 * q_he / (4.0 * np.pi * radius_cm**4))
+    if ln_p_end is None:
+        ln_p_end = np.log(pressure_factor * G * mass_g**2 * q_he / (4.0 * np.pi * radius_cm**4))
     h = (ln_p_end - ln_p0) / N_INTERIOR
     ln_dm_h = np.log(max(q_h, 1e-300) * mass_g)
     ln_dm_he = np.log(q_he * mass_g)
+    ln_dm_end = ln_dm_he if dm_core is None else np.log(dm_core * mass_g)
     he_layer = top_layer + 1 if q_h > 0 else top_layer
+    core_layer = he_layer + 1
+
+    def layer(ln_t, ln_p, k, n_fields):
+        return lookup(ln_t / _LN10, ln_p / _LN10, np.full(ln_t.shape, k), n_fields)
 
     def rhs(ln_p, y, n_fields=5):
         ln_t, r, ln_dm = y
+        # smooth H -> He (and He -> core) transitions over ~LAYER_WIDTH in ln Dm: a step inside an
+        # RK4 step would make r_base jitter with the parameters (see module docstring)
+        v = layer(ln_t, ln_p, he_layer, n_fields)
         if q_h > 0:
-            # smooth H -> He transition over ~LAYER_WIDTH in ln Dm: a step inside an RK4 step would
-            # make r_base jitter with the parameters (see module docstring)
             w_he = 0.5 * (1.0 + np.tanh((ln_dm - ln_dm_h) / LAYER_WIDTH))
-            v_h = lookup(ln_t / _LN10, ln_p / _LN10, np.full(ln_t.shape, top_layer), n_fields)
-            v_he = lookup(ln_t / _LN10, ln_p / _LN10, np.full(ln_t.shape, he_layer), n_fields)
-            v = {k: _blend(v_h[k], v_he[k], w_he) for k in v_h}
-        else:
-            v = lookup(ln_t / _LN10, ln_p / _LN10, np.full(ln_t.shape, top_layer), n_fields)
+            v_h = layer(ln_t, ln_p, top_layer, n_fields)
+            v = {k: _blend(v_h[k], v[k], w_he) for k in v_h}
+        if dm_core is not None:
+            w_c = 0.5 * (1.0 + np.tanh((ln_dm - ln_dm_he) / LAYER_WIDTH))
+            v_c = layer(ln_t, ln_p, core_layer, n_fields)
+            v = {k: _blend(v[k], v_c[k], w_c) for k in v}
         p = np.exp(ln_p)
         t = np.exp(ln_t)
         rho = 10.0 ** v["log_rho"]
         kap = 10.0 ** v["log_kappa"]
         m = mass_g - np.exp(ln_dm)
         g_loc = G * m / r**2
-        nab_rad = 3.0 * kap * lum * p / (16.0 * np.pi * A_RAD * C_LIGHT * G * m * t**4)
+        nab_rad = 3.0 * kap * lum * (m / mass_g) * p / (16.0 * np.pi * A_RAD * C_LIGHT * G * m * t**4)
         hp = p / (rho * g_loc)
         ell = alpha * hp
         cp = 10.0 ** v["log_cp"]
+        # guard against the equation of state's anomaly at pressure ionization (see THERMO_FLOOR)
+        delta = np.maximum(v["delta"], THERMO_FLOOR)
+        nabla_ad = np.maximum(v["nabla_ad"], THERMO_FLOOR)
         with np.errstate(invalid="ignore", divide="ignore"):
-            u = 3.0 * A_RAD * C_LIGHT * t**3 / (cp * rho**2 * kap * ell**2) * np.sqrt(8.0 * hp / (g_loc * v["delta"]))
-        nab, conv = temperature_gradient(nab_rad, v["nabla_ad"], np.nan_to_num(u, nan=1e30))
+            u = 3.0 * A_RAD * C_LIGHT * t**3 / (cp * rho**2 * kap * ell**2) * np.sqrt(8.0 * hp / (g_loc * delta))
+        nab, conv = temperature_gradient(nab_rad, nabla_ad, np.nan_to_num(u, nan=1e30))
         dr = -p * r * r / (G * m * rho)
         dlndm = 4.0 * np.pi * r**4 * p / (G * m * np.exp(ln_dm))
         return np.stack([nab, dr, dlndm]), conv, v.get("eta")
@@ -184,17 +226,35 @@ def integrate(lookup, mass_g, radius_cm, teff, q_h, q_he, alpha, top_layer, pres
         ln_p = ln_p + h
         hist.append(np.concatenate([y, ln_p[None]]))
     hist = np.stack(hist)                                   # (n_step, 4, ...)
-    ln_dm = hist[:, 2]
+    if return_history:                                       # diagnostics: ln T, r, ln Dm, ln P per step
+        return hist
+
+    def at_depth(ln_dm_target):
+        """State (ln T, r, ln Dm, ln P) interpolated at ln Dm = ln_dm_target, and a validity mask."""
+        with np.errstate(invalid="ignore"):
+            k = np.sum(hist[:, 2] < ln_dm_target, axis=0)      # steps above the target depth
+        ok = (k > 0) & (k < hist.shape[0])
+        kk = np.clip(k, 1, hist.shape[0] - 1)
+        lo = np.take_along_axis(hist, (kk - 1)[None, None], axis=0)[0]
+        hi = np.take_along_axis(hist, kk[None, None], axis=0)[0]
+        w = (ln_dm_target - lo[2]) / (hi[2] - lo[2])
+        return lo + w * (hi - lo), ok & np.all(np.isfinite(lo + w * (hi - lo)), axis=0)
+
+    he_base, ok_he = at_depth(ln_dm_he)
+    base, ok = at_depth(ln_dm_end)
+    eta_base = lookup(he_base[0] / _LN10, he_base[3] / _LN10, np.full(teff.shape, he_layer))["eta"]
+    nan = np.where(ok & ok_he, 1.0, np.nan)
+    # rise of ln T over the decade of pressure above the end point (the gradient check)
+    n_flat = base[0].size
+    lp = hist[:, 3].reshape(hist.shape[0], n_flat)
+    lt = hist[:, 0].reshape(hist.shape[0], n_flat)
+    target = (base[3] - _LN10).reshape(n_flat)
     with np.errstate(invalid="ignore"):
-        k = np.sum(ln_dm < ln_dm_he, axis=0)                # steps above the helium base
-    ok = (k > 0) & (k < hist.shape[0])
-    kk = np.clip(k, 1, hist.shape[0] - 1)
-    lo = np.take_along_axis(hist, (kk - 1)[None, None], axis=0)[0]
-    hi = np.take_along_axis(hist, kk[None, None], axis=0)[0]
-    w = (ln_dm_he - lo[2]) / (hi[2] - lo[2])
-    base = lo + w * (hi - lo)
-    eta_base = lookup(base[0] / _LN10, base[3] / _LN10, np.full(teff.shape, he_layer))["eta"]
-    nan = np.where(ok & np.all(np.isfinite(base), axis=0), 1.0, np.nan)
+        j = np.clip(np.sum(lp < target[None], axis=0), 1, lp.shape[0] - 1)
+    cols = np.arange(n_flat)
+    wj = (target - lp[j - 1, cols]) / (lp[j, cols] - lp[j - 1, cols])
+    ln_t_dec = (lt[j - 1, cols] + wj * (lt[j, cols] - lt[j - 1, cols])).reshape(base[0].shape)
     return {"r_base": base[1] * nan, "log_tc": base[0] / _LN10 * nan, "eta_base": eta_base * nan,
+            "log_t_he_base": he_base[0] / _LN10 * nan, "dlog_t_decade": (base[0] - ln_t_dec) / _LN10 * nan,
             "log_p_base": base[3] / _LN10 * nan, "log_dm_conv": (conv_dm - np.log(mass_g)) / _LN10,
             "eta_conv": conv_eta, "log_p_photosphere": ln_p0 / _LN10}

@@ -40,19 +40,24 @@ REFERENCES = [
     "Stellar Photospheres, ch. 8 (Wishart 1979; Bell & Berrington 1987); free-free Rybicki & Lightman 1979 eq. 5.18b",
     "Conduction: Yakovlev, D. G. & Urpin, V. A. 1980, Sov. Astron. 24, 303; Potekhin, A. Y. et al. 1999, A&A 346, 345",
     "Convection: Boehm-Vitense, E. 1958, Z. Astrophys. 46, 108, as in Kippenhahn, Weigert & Weiss 2012, ch. 7",
+    "Core material below the helium layer (to Dm = 0.3 M): fully ionised C/O, linear-mixing Coulomb energy, "
+    "Kramers free-free (Rybicki & Lightman 1979 eq. 5.18b) with Z^2 and Thomson, conduction with the ion charges",
     "Core: Chandrasekhar equation with the Salpeter 1961 lattice term (cinderclock.massradius.chandrasekhar)",
 ]
 CAUTION = ("grey Eddington boundary (poor below Teff ~5,000-6,000 K: non-grey, convective atmospheres); no "
            "molecules, collision-induced absorption or He- free-free (cool DA below ~5,000 K and DB below "
            f"{HE_ATMOSPHERE_MIN_TEFF:.0f} K too transparent; DB rows below that are NaN); analytic opacities "
            "(Kramers free-free, hydrogenic bound-free) instead of opacity tables; local mixing-length "
-           "convection with one alpha; radiation pressure left out")
+           "convection with one alpha; radiation pressure left out; T_c taken at Dm = 0.3 M with L_r = L m/M "
+           "and no neutrino losses (hot stars above ~30,000 K: core too hot; the temperature still rises "
+           "by 0.01-0.1 dex per decade of pressure there); radius matched to the zero-temperature core at "
+           "Dm = 0.3 M (its thermal pressure below is left out)")
 
 #: Columns of the long table (Parquet-ready, see cinderclock.tableio.write_table).
 TABLE_COLUMNS = {
     "mass_msun": Column("solMass", "White-dwarf mass", "phys.mass"),
     "log_teff": Column("dex(K)", "log10 of the effective temperature", "phys.temperature.effective"),
-    "log_tc": Column("dex(K)", "log10 of the isothermal core temperature (base of the helium layer)", "phys.temperature"),
+    "log_tc": Column("dex(K)", "log10 of the core temperature (at Dm = 0.3 M in the core material, below the helium layer)", "phys.temperature"),
     "radius_rsun": Column("solRad", "Photospheric radius with the integrated envelope (NaN where not bound)",
                           "phys.size.radius"),
     "log_lum": Column("dex(solLum)", "log10 of 4 pi R^2 sigma Teff^4 in solar units", "phys.luminosity"),
