@@ -251,6 +251,8 @@ def build_cooling_table(settings, which="primary", user_tracks_path=None, envelo
     if cool["calibration"]["coefficient_yr"] is not None and uses_kramers(cool, model):
         info["calibration"] = {"coefficient_yr": cool["calibration"]["coefficient_yr"],
                                "source": cool["calibration"]["source"]}
+        info["caution"] = (info.get("caution", "") + "; EXPERT CALIBRATION of the Kramers law: one coefficient "
+                           "rescales every luminosity alike and cannot fix both ends of the sequence").lstrip("; ")
     info.setdefault("name", f"cooling_{model}")
     info.setdefault("reference", "")
     cols = table_columns()
