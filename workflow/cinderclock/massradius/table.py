@@ -35,8 +35,10 @@ from .grid import MassRadiusGrid  # noqa: F401  (re-exported: the table and its 
 #: Default mass grid in Msun: 0.10 to 1.34 in steps of 0.005 (upper end below the Newtonian
 #: model's range limit, CHANDRASEKHAR_1939).
 DEFAULT_MASS_GRID = np.round(np.arange(0.10, 1.34 + 1e-9, 0.005), 6)
-#: Default Teff grid in K: 121 points, uniform in log from 3000 K to 150000 K.
-DEFAULT_TEFF_GRID = np.geomspace(3000.0, 150000.0, 121)
+#: Default Teff grid in K: 241 points, uniform in log from 3000 K to 150000 K (0.007 dex: with the
+#: core material below the helium layer the inflation of hot low-mass stars grows steeply with
+#: Teff, and 121 points left mass round trips near 0.5 Msun and 40,000 K at 1.2e-4 Msun).
+DEFAULT_TEFF_GRID = np.geomspace(3000.0, 150000.0, 241)
 #: Largest envelope mass fraction (mass above the degeneracy boundary / M) kept in a table; above
 #: it the thin-envelope assumption of the model fails (our choice).
 MAX_ENVELOPE_MASS_FRACTION = 0.1
