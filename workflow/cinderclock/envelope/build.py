@@ -9,8 +9,9 @@ layers and on through the core material (:mod:`~.mantle`), reaches the depth Dm 
 (1 - DM_CORE) M. One fixed-point step and then secant steps, vectorised over the stars
 not yet converged (each to |r_base - r_core| / R < 1e-7, so radii are smooth in Teff at the 1e-7
 level); stars that do not converge, or whose envelope cannot be bound (hot, low-mass stars whose
-radius runs away), are NaN. Known limit: below ~3,700 K at 0.45-0.65 Msun r_base(R) of the
-convective envelopes has small jumps and several roots, so radii there scatter by ~1 % in Teff.
+radius runs away), are NaN. The cool-end jumps and multiple roots of r_base(R) that earlier
+versions had (below ~3,700 K at 0.45-0.65 Msun) came from the equation of state's pressure-
+ionization anomaly; see :data:`~cinderclock.envelope.structure.THERMO_FLOOR`.
 """
 
 from __future__ import annotations
