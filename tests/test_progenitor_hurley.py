@@ -6,7 +6,7 @@ evolved with the package's default settings and ``zsun = 0.02`` (so zeta = log10
 paper). Its event table gives the times at which the star enters the Hertzsprung gap (end of the
 main sequence), the giant branch (t_BGB), core helium burning (t_HeI), the early AGB (t_BAGB), the
 thermally pulsing AGB (t_TP) and the white-dwarf stage (end of the AGB), and the white-dwarf mass.
-Values transcribed from that run (Myr). Tolerances: the event times are printed at the end of a
+Values copied from that run's output (Myr). Tolerances: the event times are printed at the end of a
 time step, and the package evolves the star with Reimers mass loss, which the closed-form
 lifetimes here do not follow (the core growth laws are the same; the star's mass enters the later
 phases): 0.05 % for the main sequence and t_BGB (0.2 % at 5 Msun), 0.2 % to helium ignition, 0.5 % for the later

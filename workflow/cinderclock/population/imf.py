@@ -9,7 +9,7 @@ xi(M) dM ~ M^(-alpha) dM on each segment, continuous at the joins.
 ``kroupa``
     alpha = 0.3 (0.01-0.08 Msun), 1.3 (0.08-0.5 Msun), 2.3 (above 0.5 Msun) (Kroupa, P. 2001,
     MNRAS 322, 231, eq. 2: alpha_2 = 2.3 for 0.5-1 Msun and alpha_3 = 2.3 above 1 Msun, checked
-    against two transcriptions of the arXiv text, astro-ph/0009005; the upper mass limit of
+    against two public copies of the arXiv text, astro-ph/0009005; the upper mass limit of
     100 Msun is our choice). Over the white-dwarf progenitor range it differs from Salpeter only
     by the slope 2.3 against 2.35.
 
@@ -47,7 +47,7 @@ KROUPA_2001 = PublishedRelation(
     source_location="eq. 2 (alpha_0 = 0.3, 0.01-0.08; alpha_1 = 1.3, 0.08-0.5; alpha_2 = 2.3, 0.5-1; "
                     "alpha_3 = 2.3, above 1 Msun)",
     verified=True,
-    verification="C2: eq. 2 slopes and break masses checked against two independent transcriptions of the "
+    verification="C2: eq. 2 slopes and break masses checked against two independent public copies of the "
                  "paper's arXiv text (astro-ph/0009005)",
 )
 

@@ -23,7 +23,7 @@ Z = 1e-4 to 0.03. The times computed here, all in Myr and vectorised over the in
     mass loss ends the AGB, and the white dwarf's mass (from the initial-final mass relation)
     says when, so this lifetime takes the final mass as an input.
 
-Coefficients: Appendix A of the paper as transcribed in two independent public implementations
+Coefficients: Appendix A of the paper as reproduced in two independent public implementations
 (they agree digit for digit; the paper's own appendix text could not be read here), so they are
 marked "verified through secondary sources" in the relation's metadata. Where the public
 implementation of the authors differs from the paper's printed equation, we follow the paper:

