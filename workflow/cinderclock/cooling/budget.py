@@ -86,7 +86,8 @@ def shell_sums(tc, rho, weight, mix, t_freeze, gravity, sw, x_solid_fractions=No
     -------
     dict of (n_tc,) arrays
         ``cap_kb_per_g`` (heat capacity, k_B per gram), ``eps_nu`` (erg g^-1 s^-1),
-        ``eps_ne22`` (erg g^-1 s^-1), all averaged over the star's mass.
+        ``eps_ne22`` (erg g^-1 s^-1), all averaged over the star's mass; and the (n_tc, n_shell)
+        array ``eps_ne22_shell``, each shell's share of ``eps_ne22`` (zero in solid shells).
     """
     n_tc, n_shell = tc.size, rho.size
     nf_liq = mix.number_fractions()
@@ -98,6 +99,7 @@ def shell_sums(tc, rho, weight, mix, t_freeze, gravity, sw, x_solid_fractions=No
     abar, zbar = mix.abar, mix.zbar
     z53 = np.sum(nf_liq * mix.z ** (5.0 / 3.0), axis=-1)
     out = {k: np.zeros(n_tc) for k in ("cap_kb_per_g", "eps_nu", "eps_ne22")}
+    out["eps_ne22_shell"] = np.zeros((n_tc, n_shell))
     step = max(1, BLOCK_ELEMENTS // max(n_shell, 1))
     for lo in range(0, n_tc, step):
         t = tc[lo:lo + step]
@@ -118,5 +120,7 @@ def shell_sums(tc, rho, weight, mix, t_freeze, gravity, sw, x_solid_fractions=No
             gam = z53[None, :] * electron_coupling_coefficient(ye0) * np.cbrt(rho)[None, :] / t[:, None]
             heat = sed.heating_rate_erg_g_s(rho[None, :], t[:, None], gravity[None, :], gam, zbar[None, :],
                                             sw.ne22_mass_fraction)
-            out["eps_ne22"][lo:lo + step] = np.sum(np.where(solid, 0.0, weight * heat), axis=1)
+            shell_heat = np.where(solid, 0.0, weight * heat)
+            out["eps_ne22_shell"][lo:lo + step] = shell_heat
+            out["eps_ne22"][lo:lo + step] = np.sum(shell_heat, axis=1)
     return out

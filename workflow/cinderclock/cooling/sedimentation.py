@@ -13,10 +13,22 @@ used by Deloye & Bildsten (2002, ApJ 580, 1077),
 
 with Gamma and Zbar those of the C/O background (the formula as we recall it; it equals the
 one-component-plasma self-diffusion law D = 3 omega_p a^2 Gamma^(-4/3) of Hansen, McDonald & Pollock
-1975, PRA 11, 1025, to 0.1 % for carbon, which is how we checked it).
+1975, PRA 11, 1025, to 0.1 % for carbon, which is how we checked it). That is the self-diffusion
+coefficient of the background ions. The 22Ne ion (Z = 10) diffuses more slowly: molecular-dynamics
+runs of C/O/Ne mixtures find D_i close to the one-component-plasma value with, at strong coupling
+(Gamma above a few), D_i proportional to Z_i^(-2/3) (Hughto, Schneider, Horowitz & Berry 2010,
+PRE 82, 066401, abstract). We therefore scale the background coefficient by (10 / Zbar)^(-2/3)
+(0.79 for an equal C/O mixture).
 
-The rate is that of a uniform trace (no depletion profile is followed); the total heat is capped at
-the energy of bringing all the 22Ne of the star to the centre, after which the heating stops.
+The rate is that of a uniform trace below a depletion front: the 22Ne above the front has drained
+inward, so shells outside it no longer heat. The front starts at the top of the C/O core and moves
+inward at the local drift speed v (it stops where the shell it reaches is solid, which holds its
+22Ne); inside it the concentration is taken as uniform (the central pile-up is not followed). The
+total heat is also capped at the energy of bringing all the 22Ne of the star to the centre. Only the
+low-density outer layers, where D is large, drain before they freeze (the front ends some 20 % of
+the radius inside the core top for 0.6-1.0 Msun); it matters most for massive white dwarfs, whose
+gravity is high and whose heating would otherwise go on in the outer liquid long after the
+interior has frozen.
 Deloye & Bildsten (2002) find delays of 0.25-1.6 Gyr by the end of crystallization, depending on the
 mass and the diffusion coefficient: their diffusion calculation (not the uniform-trace rate) is the
 reference, and our simplification is a caution.
@@ -36,11 +48,19 @@ _G_CGS = G_SI * 1e3
 #: Diffusion-coefficient prefactor of Deloye & Bildsten (2002), cm^2 s^-1 (T in K, rho in g cm^-3).
 DB2002_PREFACTOR = 7.3e-7
 
+#: Charge of the settling 22Ne ion.
+Z_NE22 = 10.0
+
+#: Exponent of the charge dependence of the self-diffusion coefficient of an ion species in a
+#: strongly coupled mixture, D_i ~ Z_i^(-2/3) (Hughto et al. 2010, PRE 82, 066401, abstract).
+HUGHTO2010_CHARGE_EXPONENT = -2.0 / 3.0
+
 DELOYE_BILDSTEN_2002 = PublishedRelation(
     key="deloye_bildsten_2002_ne22_settling",
-    reference="Deloye, C. J. & Bildsten, L. 2002, ApJ 580, 1077; Bildsten, L. & Hall, D. M. 2001, ApJ 549, L219",
+    reference=("Deloye, C. J. & Bildsten, L. 2002, ApJ 580, 1077; Bildsten, L. & Hall, D. M. 2001, ApJ 549, L219; "
+               "charge scaling of D: Hughto, J. et al. 2010, PRE 82, 066401"),
     ranges=(ValidRange("gamma", 1.0, 180.0),),
-    note="liquid only; uniform-trace heating rate with an energy cap (no depletion profile)")
+    note="liquid only; uniform-trace heating rate below an inward-moving depletion front, with an energy cap")
 
 
 def diffusion_coefficient_cgs(rho_cgs, temperature_k, gamma, zbar):
@@ -49,11 +69,37 @@ def diffusion_coefficient_cgs(rho_cgs, temperature_k, gamma, zbar):
             / (np.sqrt(np.asarray(rho_cgs, dtype=float)) * zbar * np.cbrt(np.asarray(gamma, dtype=float))))
 
 
+def ne22_diffusion_coefficient_cgs(rho_cgs, temperature_k, gamma, zbar):
+    """Diffusion coefficient (cm^2 s^-1) of the 22Ne ion in the C/O liquid.
+
+    The background self-diffusion coefficient (:func:`diffusion_coefficient_cgs`, with the C/O
+    ``gamma`` and ``zbar``) times (Z_Ne / Zbar)^(-2/3) (Hughto et al. 2010, PRE 82, 066401).
+    """
+    scale = (Z_NE22 / np.asarray(zbar, dtype=float)) ** HUGHTO2010_CHARGE_EXPONENT
+    return diffusion_coefficient_cgs(rho_cgs, temperature_k, gamma, zbar) * scale
+
+
 def heating_rate_erg_g_s(rho_cgs, temperature_k, gravity_cgs, gamma, zbar, x22):
-    """Heat released per unit mass (erg g^-1 s^-1) by the settling of 22Ne of mass fraction ``x22``."""
+    """Heat released per unit mass (erg g^-1 s^-1) by the settling of 22Ne of mass fraction ``x22``.
+
+    ``gamma`` and ``zbar`` are those of the C/O background.
+    """
     force = 2.0 * _M_U_G * np.asarray(gravity_cgs, dtype=float)
-    d = diffusion_coefficient_cgs(rho_cgs, temperature_k, gamma, zbar)
+    d = ne22_diffusion_coefficient_cgs(rho_cgs, temperature_k, gamma, zbar)
     return x22 / (22.0 * _M_U_G) * force**2 * d / (_K_B_CGS * np.asarray(temperature_k, dtype=float))
+
+
+def drift_speed_cm_s(shell_heat, weight, gravity_cgs, x22):
+    """Terminal drift speed v = F D / (k T) (cm s^-1) of 22Ne recovered from a shell's heating.
+
+    ``shell_heat`` is the shell's share of the mass-averaged heating rate (``weight`` times the
+    per-gram rate of :func:`heating_rate_erg_g_s`); since that rate is X_22 / (22 m_u) F v with
+    F = 2 m_u g, v = rate * 11 / (X_22 g). Zero where the shell is solid, empty or at the centre.
+    """
+    shell_heat = np.asarray(shell_heat, dtype=float)
+    denom = np.asarray(weight, dtype=float) * x22 * np.asarray(gravity_cgs, dtype=float)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.where(denom > 0, shell_heat * 11.0 / np.where(denom > 0, denom, 1.0), 0.0)
 
 
 def shell_gravity_cgs(profile, q_mid):

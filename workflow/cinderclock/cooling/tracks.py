@@ -46,8 +46,8 @@ Cautions (systematics that remain)
 * The C/O profile is one documented shape for every mass (from memory of published profiles).
 * Phase separation: instantaneous, complete mixing of the liquid (an upper bound on its efficiency);
   liquid phase diagram from linear mixing; no 22Ne distillation.
-* 22Ne: uniform-trace settling rate, no depletion profile; the diffusion coefficient is uncertain by
-  about a factor of two in the literature.
+* 22Ne: uniform-trace settling rate below an inward-moving depletion front (no central pile-up
+  profile); the diffusion coefficient is uncertain by about a factor of two in the literature.
 * Quantum liquid approximated by the harmonic-lattice suppression factor; electron-ion screening
   corrections to the ion free energies are neglected.
 * Neutrino emission uses the Itoh et al. fits only for T >= 1e7 K.
@@ -191,8 +191,8 @@ CAUTIONS = (
     "one C/O profile shape for every mass (unverified against published profiles)",
     "phase separation with instantaneous complete mixing (upper bound on its efficiency); "
     "linear-mixing liquid in the phase diagram; no 22Ne distillation",
-    "22Ne settling at the uniform-trace rate with an energy cap (no depletion profile); the diffusion "
-    "coefficient is uncertain by about a factor of two",
+    "22Ne settling at the uniform-trace rate below a depletion front, with an energy cap (no central "
+    "pile-up profile); the diffusion coefficient is uncertain by about a factor of two",
     "quantum liquid approximated by the lattice suppression factor; no electron screening corrections",
 )
 
@@ -286,7 +286,10 @@ def _star_setup(profile, mass_msun, comp, sw, n_shell, gamma_melt):
     rho = np.interp(mid, q, rho_full)
     weight = np.where(rho > RHO_FLOOR_CGS, 1.0 / n_shell, 0.0)
     mix = shell_mixture(comp, mid, stratified=sw.stratified_core, profile=DEFAULT_OXYGEN_PROFILE)
-    gravity = sed.shell_gravity_cgs(profile, mid)[0]
+    gravity, _, (q_prof, r_prof, _) = sed.shell_gravity_cgs(profile, mid)
+    r_mid = np.interp(mid, q_prof, r_prof)
+    # top of the C/O core: outer edge of the outermost shell that holds core matter
+    core_top = float(np.interp(edges[1:][weight > 0].max(), q_prof, r_prof)) if np.any(weight > 0) else 0.0
     x_sol_nf = None
     sep_energy = np.zeros(n_shell)
     rho_c = float(rho_full[0])
@@ -309,7 +312,7 @@ def _star_setup(profile, mass_msun, comp, sw, n_shell, gamma_melt):
     latent = sw.latent_heat_per_ion_kt() * _K_B_CGS * t_f * ions
     return {"rho": rho, "weight": weight, "mix": mix, "gravity": gravity, "t_freeze": t_f,
             "t_start": t_start, "x_solid_nf": x_sol_nf, "latent": latent, "separation": sep_energy,
-            "n_ion": float(np.sum(ions))}
+            "n_ion": float(np.sum(ions)), "r_mid_cm": r_mid, "core_top_cm": core_top}
 
 
 def _cumulative_on_grid(tc, t_start, t_freeze, per_shell):
@@ -384,6 +387,11 @@ def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profile
     e_lat = np.zeros((n_m, n_tc))
     e_sep = np.zeros((n_m, n_tc))
     e_cap = np.zeros(n_m)
+    eps_ne_shell = np.zeros((n_m, n_tc, n_shell))
+    weights = np.zeros((n_m, n_shell))
+    gravities = np.zeros((n_m, n_shell))
+    r_mid = np.zeros((n_m, n_shell))
+    r_front = np.zeros(n_m)
     for i, (p, m) in enumerate(zip(profiles, masses)):
         st = _star_setup(p, m, comp, sw, n_shell, sw.gamma_melt)
         if sw.crystallization:
@@ -396,6 +404,10 @@ def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profile
         cap[i], eps_nu[i], eps_ne[i] = sums["cap_kb_per_g"], sums["eps_nu"], sums["eps_ne22"]
         if sw.ne22_sedimentation:
             e_cap[i] = sed.settling_energy_cap_erg(p, mass_g[i], sw.ne22_mass_fraction)
+            eps_ne_shell[i] = sums["eps_ne22_shell"]
+            weights[i], gravities[i], r_mid[i] = st["weight"], st["gravity"], st["r_mid_cm"]
+            r_front[i] = st["core_top_cm"]
+    r_front_start = r_front.copy()
     qc = np.clip(qc, 0.0, 1.0)
     dU_dT = cap * _K_B_CGS * mass_g[:, None]                        # erg K^-1
 
@@ -409,8 +421,21 @@ def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profile
     d_release = np.diff(e_lat, axis=1) + np.diff(e_sep, axis=1)    # erg released per interval (>= 0)
 
     # sequential in T_c because of the 22Ne reservoir; vectorised over masses. The settling heat is
-    # the uniform-trace rate times the fraction of the full-settling energy not yet released; where
-    # it would exceed the losses the core stalls at constant T_c while the reservoir drains.
+    # the uniform-trace rate of the shells below the depletion front times the fraction of the
+    # full-settling energy not yet released; where it would exceed the losses the core stalls at
+    # constant T_c while the reservoir drains. The front moves inward at the drift speed of the
+    # shell it is in.
+    rows = np.arange(n_m)
+
+    def _front_heat(k):
+        active = r_mid < r_front[:, None]
+        return np.sum(np.where(active, eps_ne_shell[:, k, :], 0.0), axis=1) * mass_g
+
+    def _front_speed(k):
+        j = np.clip(np.sum(r_mid < r_front[:, None], axis=1) - 1, 0, n_shell - 1)
+        return sed.drift_speed_cm_s(eps_ne_shell[rows, k, j], weights[rows, j], gravities[rows, j],
+                                    sw.ne22_mass_fraction)
+
     dt = np.empty((n_m, n_tc - 1))
     l_ne_used = np.zeros((n_m, n_tc))
     released = np.zeros(n_m)
@@ -420,15 +445,17 @@ def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profile
     stall_nodes = 0
     for k in range(n_tc - 1):
         phi = np.where(has_cap, np.clip(1.0 - released / safe_cap, 0.0, 1.0), 0.0)
-        stall = phi * l_ne[:, k] > limit * l_out[:, k]
+        stall = phi * _front_heat(k) > limit * l_out[:, k]
         t_stall = np.zeros(n_m)
         if np.any(stall):
             stall_nodes += int(np.sum(stall))
-            drain = np.where(stall, safe_cap * (phi - limit * l_out[:, k] / np.where(stall, l_ne[:, k], 1.0)), 0.0)
+            l_k = _front_heat(k)
+            drain = np.where(stall, safe_cap * (phi - limit * l_out[:, k] / np.where(stall, l_k, 1.0)), 0.0)
             t_stall = drain / (l_out[:, k] * (1.0 + limit)) * 2.0     # heating falls from L_out to limit*L_out
             released = released + drain
             phi = np.where(has_cap, np.clip(1.0 - released / safe_cap, 0.0, 1.0), 0.0)
-        h0, h1 = phi * l_ne[:, k], phi * l_ne[:, k + 1]
+        l_front0, l_front1 = _front_heat(k), _front_heat(k + 1)
+        h0, h1 = phi * l_front0, phi * l_front1
         net0 = np.maximum(l_out[:, k] - h0, NET_LOSS_FLOOR * l_out[:, k])
         net1 = np.maximum(l_out[:, k + 1] - h1, NET_LOSS_FLOOR * l_out[:, k + 1])
         f0 = dU_dT[:, k] * tc[k] / net0
@@ -437,6 +464,8 @@ def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profile
         dt[:, k] = step + t_stall
         l_ne_used[:, k + 1] = h1
         released = np.minimum(released + 0.5 * (h0 + h1) * step, e_cap)
+        if sw.ne22_sedimentation:
+            r_front = np.maximum(r_front - _front_speed(k) * dt[:, k], 0.0)
     f = dU_dT * tc[None, :] / np.maximum(l_out - l_ne_used, NET_LOSS_FLOOR * l_out)
     # ages from T = infinity: the integrand above the start continued as a power law
     slope = np.log(f[:, 1] / f[:, 0]) / dx                          # d ln f / d ln(1/T) > 0
@@ -453,6 +482,7 @@ def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profile
                 "log_tc_start": log_tc_start, "dlog_tc": dlog_tc, "n_shell": n_shell,
                 "ne22_stall_nodes": stall_nodes, "ne22_energy_released_erg": released.tolist(),
                 "ne22_energy_cap_erg": e_cap.tolist(),
+                "ne22_front_start_cm": r_front_start.tolist(), "ne22_front_end_cm": r_front.tolist(),
                 "references": [dict(r) for r in INGREDIENT_REFERENCES], "cautions": list(CAUTIONS)}
     return Tracks(mass_msun=masses, radius_rsun=radius, log_tc=log_tc,
                   log_lum=np.log10(l_photon / _L_SUN_ERG_S), log_lum_nu=log_lum_nu,
