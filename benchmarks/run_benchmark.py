@@ -58,7 +58,7 @@ def prepare(workdir, rows, rows_per_shard, draws=100):
     workdir.mkdir(parents=True, exist_ok=True)
     cat = workdir / "catalogue.parquet"
     subprocess.run([sys.executable, str(ROOT / "sample_catalog" / "make_sample.py"), "--rows", str(rows),
-                    "--out", str(cat), "--no-faults"], check=True, capture_output=True)
+                    "--out", str(cat), "--no-faults", "--mestel"], check=True, capture_output=True)
     cfg = yaml.safe_load((ROOT / "config" / "config.yaml").read_text())
     cfg["catalogue"]["path"] = "catalogue.parquet"
     cfg["shards"]["rows_per_shard"] = rows_per_shard

@@ -7,7 +7,9 @@ here is observed data.
 
 The population is deliberately simple: constant star formation over ``age_gyr``, a Salpeter IMF,
 main-sequence lifetimes from the 10 Gyr (M/Msun)^-2.5 rule of thumb, a linear initial-final mass
-relation, Mestel cooling with cinderclock's default coefficient, the Nauenberg radius and
+relation, and either Mestel cooling with cinderclock's default coefficient and the Nauenberg
+radius (the quick default, used by the tests) or a cinderclock cooling table (luminosity, Teff and
+finite-temperature radius along its tracks; the shipped sample uses the default model), with
 blackbody photometry. Contaminants are main-sequence stars and distant sources whose parallaxes are
 pure noise. A few malformed rows exercise the ingest checks. The generator is vectorised and scales
 to millions of rows.
@@ -44,8 +46,13 @@ def _phot_errors(rng, g):
     }
 
 
-def white_dwarfs(rng, n, age_gyr=10.0, max_distance_pc=250.0):
-    """True parameters of ``n`` white dwarfs from a constant-star-formation population."""
+def white_dwarfs(rng, n, age_gyr=10.0, max_distance_pc=250.0, cooling=None):
+    """True parameters of ``n`` white dwarfs from a constant-star-formation population.
+
+    ``cooling`` is an optional :class:`~cinderclock.cooling.grid.CoolingGrid` with ``teff_k`` and
+    ``radius_rsun`` columns; without it the stars cool by Mestel's law on the Nauenberg radius.
+    Stars the table cannot place (past its faint limit) are dropped: far below any survey limit.
+    """
     from .cooling.mestel import age_coefficient_yr, luminosity_at_age
     from .constants import L_SUN_W, R_SUN_M, SIGMA_SB_SI
     from .massradius.nauenberg import radius_rsun
@@ -61,9 +68,16 @@ def white_dwarfs(rng, n, age_gyr=10.0, max_distance_pc=250.0):
         keep = t_cool > 0.003
         mi, t_cool = mi[keep], t_cool[keep]
         mf = np.clip(0.08 * mi + 0.489, 0.5, 1.3)
-        logl = luminosity_at_age(mf, t_cool * 1e9, coeff)
-        r = radius_rsun(mf)
-        teff = (10 ** logl * L_SUN_W / (4 * np.pi * SIGMA_SB_SI * (r * R_SUN_M) ** 2)) ** 0.25
+        if cooling is None:
+            logl = luminosity_at_age(mf, t_cool * 1e9, coeff)
+            r = radius_rsun(mf)
+            teff = (10 ** logl * L_SUN_W / (4 * np.pi * SIGMA_SB_SI * (r * R_SUN_M) ** 2)) ** 0.25
+        else:
+            logl, _ = cooling.log_lum_at_age(mf, t_cool * 1e9)
+            teff = cooling.interpolate("teff_k", mf, logl)
+            r = cooling.interpolate("radius_rsun", mf, logl)
+            ok = np.isfinite(logl) & np.isfinite(teff) & np.isfinite(r)
+            mf, t_cool, logl, teff, r = mf[ok], t_cool[ok], logl[ok], teff[ok], r[ok]
         dist = max_distance_pc * rng.uniform(size=mf.size) ** (1 / 3)
         for key, val in zip(("mass", "cool_age", "logl", "teff", "radius", "dist"), (mf, t_cool, logl, teff, r, dist)):
             out[key] = np.concatenate([out[key], val])
@@ -80,7 +94,7 @@ def _blackbody_abs_mags(teff, logl):
     return {b: mbol - np.interp(lt, np.log10(grid), bc[:, j]) for j, b in enumerate(BANDS)}
 
 
-def make_catalogue(n_rows, seed=20261201, wd_fraction=0.5, spec_fraction=0.3, malformed=True):
+def make_catalogue(n_rows, seed=20261201, wd_fraction=0.5, spec_fraction=0.3, malformed=True, cooling=None):
     """Invented Lanternfall DR1 catalogue.
 
     Parameters
@@ -96,6 +110,8 @@ def make_catalogue(n_rows, seed=20261201, wd_fraction=0.5, spec_fraction=0.3, ma
     malformed : bool
         Add rows with faults (text in numbers, sentinels, duplicated or missing identifiers, wrong
         field counts are added by :func:`write_csv`).
+    cooling : CoolingGrid, optional
+        Cooling table for the white dwarfs (see :func:`white_dwarfs`); default Mestel's law.
 
     Returns
     -------
@@ -114,7 +130,7 @@ def make_catalogue(n_rows, seed=20261201, wd_fraction=0.5, spec_fraction=0.3, ma
     # --- white dwarfs (drawn in batches until enough are brighter than the survey limit)
     parts, absparts, have = [], [], 0
     while have < n_wd:
-        batch = white_dwarfs(rng, 2 * (n_wd - have) + 100)
+        batch = white_dwarfs(rng, 2 * (n_wd - have) + 100, cooling=cooling)
         mags = _blackbody_abs_mags(batch["teff"], batch["logl"])
         seen = mags["G"] + 5 * np.log10(batch["dist"]) - 5 < G_LIMIT
         parts.append({k: v[seen] for k, v in batch.items()})
