@@ -200,3 +200,21 @@ def test_ne22_settling_delay_by_complete_crystallization(default_models):
         delays.append(float(on.age_yr(mass, -5.3)[0] - off.age_yr(mass, -5.3)[0]))
     assert all(0.25e9 < d < 1.6e9 for d in delays), delays
     assert delays[0] < delays[1], delays
+
+
+def test_grey_boundary_flag_follows_the_published_limits(default_models):
+    """Detailed (non-grey) outer boundary conditions become relevant below Teff = 5,800 K for 0.60 Msun
+    and 6,100 K for 0.90 Msun (Rohrmann et al. 2012, A&A 546, A119, abstract). The table's flag must
+    switch on at those temperatures: rows between 5,800 and 6,100 K are flagged at 0.9 Msun and not at
+    0.6 Msun."""
+    from cinderclock.cooling.table import grey_boundary_teff_k
+
+    assert grey_boundary_teff_k(0.6) == pytest.approx(5800.0)
+    assert grey_boundary_teff_k(0.9) == pytest.approx(6100.0)
+    t = default_models["H"]["table"]
+    band = (t["teff_k"] > 5850.0) & (t["teff_k"] < 6050.0)
+    at06, at09 = band & np.isclose(t["mass_msun"], 0.6), band & np.isclose(t["mass_msun"], 0.9)
+    assert at06.sum() > 0 and at09.sum() > 0
+    assert (t.loc[at06, "grey_boundary"] == 0).all()
+    assert (t.loc[at09, "grey_boundary"] == 1).all()
+    assert (t.loc[np.isclose(t["mass_msun"], 0.6) & (t["teff_k"] < 5750.0), "grey_boundary"] == 1).all()

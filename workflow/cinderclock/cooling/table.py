@@ -75,10 +75,21 @@ MODEL_CAUTIONS = {
 }
 
 
-#: Below this Teff (K) a grey Eddington boundary condition misrepresents the atmosphere: non-grey
-#: model atmospheres are needed (Rohrmann et al. 2012, A&A 546, A119, abstract). Rows of a table built
-#: on the integrated (grey) envelope carry ``grey_boundary`` = 1 there; the cooling stage flags them.
+#: Below these Teff (K) a grey Eddington boundary condition misrepresents the atmosphere and detailed
+#: non-grey boundary conditions become relevant: 5,800 K for 0.60 Msun and 6,100 K for 0.90 Msun
+#: sequences (Rohrmann et al. 2012, A&A 546, A119, abstract). Rows of a table built on the integrated
+#: (grey) envelope carry ``grey_boundary`` = 1 below the line through the two points (held at
+#: 5,800 K below 0.6 Msun, continued linearly above 0.9 Msun: our choice, both on the cautious side);
+#: the cooling stage flags them.
 GREY_BOUNDARY_MIN_TEFF_K = 5800.0
+GREY_BOUNDARY_POINTS = ((0.60, 5800.0), (0.90, 6100.0))
+
+
+def grey_boundary_teff_k(mass_msun):
+    """Teff (K) below which the grey boundary condition fails, at a mass (Msun); see above."""
+    (m0, t0), (m1, t1) = GREY_BOUNDARY_POINTS
+    m = np.asarray(mass_msun, dtype=float)
+    return np.where(m <= m0, t0, t0 + (t1 - t0) * (m - m0) / (m1 - m0))
 
 
 def default_log_lum_grid(bright=BRIGHT_LIMIT_LOG_LUM, far_future=FAR_FUTURE_LOG_LUM):
@@ -232,7 +243,8 @@ def build_cooling_table(model="numerical", masses=None, envelope="He", core="CO"
         "far_future": (log_lum < faint[:, None]).ravel(),
     })
     if finite_t:
-        df["grey_boundary"] = (df["teff_k"].to_numpy() < GREY_BOUNDARY_MIN_TEFF_K).astype(float)
+        df["grey_boundary"] = (df["teff_k"].to_numpy()
+                               < grey_boundary_teff_k(df["mass_msun"].to_numpy())).astype(float)
     df = df[np.isfinite(df["age_yr"].to_numpy())].reset_index(drop=True)
     kind = "numerical" if model == "numerical" else "mestel"
     df.attrs["cooling_model"] = {
@@ -262,8 +274,9 @@ def _columns():
         "log_lum_nu": Column("dex(solLum)", "log10 neutrino luminosity (NaN where not modelled)", "phys.luminosity"),
         "crystallized_fraction": Column("", "Crystallized mass fraction of the star (NaN where not modelled)", ""),
         "far_future": Column("", "True fainter than the model's calibrated range (formal continuation)", "meta.code"),
-        "grey_boundary": Column("", "1 where Teff < 5,800 K: the grey boundary condition of the integrated "
-                                    "envelope fails there (Rohrmann et al. 2012)", "meta.code"),
+        "grey_boundary": Column("", "1 where Teff is below 5,800 K (0.6 Msun) to 6,100 K (0.9 Msun): the grey "
+                                    "boundary condition of the integrated envelope fails there (Rohrmann et "
+                                    "al. 2012)", "meta.code"),
     }
 
 
