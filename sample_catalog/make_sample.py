@@ -19,12 +19,10 @@ from cinderclock.simulate import make_catalogue, write_csv  # noqa: E402
 
 def default_cooling_grid():
     """The cooling table of the shipped default configuration (built here, about a minute)."""
-    from cinderclock.config import load_config, stage_settings
-    from cinderclock.stages import models as M
+    from cinderclock.api import ModelSet
+    from cinderclock.config import load_config
 
-    cfg = load_config(Path(__file__).resolve().parents[1] / "config" / "config.yaml")
-    env = M.load_envelope(M.build_envelope_table(stage_settings(cfg, "envelope_model"))[0])
-    return M.load_cooling(M.build_cooling_table(stage_settings(cfg, "cooling_model"), envelope=env)[0])
+    return ModelSet.build(load_config(Path(__file__).resolve().parents[1] / "config" / "config.yaml")).cooling
 
 
 def main(argv=None):

@@ -60,7 +60,8 @@ FLAG_BITS = {
     "zero_point_fallback": (18, "Per-star parallax zero point not available (inputs missing): the configured "
                                 "constant was used"),
     "grey_boundary": (19, "Teff below 5,800 K (0.6 Msun) to 6,100 K (0.9 Msun, rising with mass), where the "
-                          "grey-atmosphere boundary of the integrated envelope fails (Rohrmann et al. 2012, A&A 546, A119): cooling-age systematics larger"),
+                          "grey-atmosphere boundary of the integrated envelope fails (Rohrmann et al. 2012, "
+                          "A&A 546, A119): cooling-age systematics larger"),
 }
 
 REJECT_COLUMNS = {

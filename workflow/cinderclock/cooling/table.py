@@ -81,7 +81,6 @@ MODEL_CAUTIONS = {
 #: (grey) envelope carry ``grey_boundary`` = 1 below the line through the two points (held at
 #: 5,800 K below 0.6 Msun, continued linearly above 0.9 Msun: our choice, both on the cautious side);
 #: the cooling stage flags them.
-GREY_BOUNDARY_MIN_TEFF_K = 5800.0
 GREY_BOUNDARY_POINTS = ((0.60, 5800.0), (0.90, 6100.0))
 
 

@@ -286,8 +286,7 @@ def _star_setup(profile, mass_msun, comp, sw, n_shell, gamma_melt):
     rho = np.interp(mid, q, rho_full)
     weight = np.where(rho > RHO_FLOOR_CGS, 1.0 / n_shell, 0.0)
     mix = shell_mixture(comp, mid, stratified=sw.stratified_core, profile=DEFAULT_OXYGEN_PROFILE)
-    gravity, _, (q_prof, r_prof, _) = sed.shell_gravity_cgs(profile, mid)
-    r_mid = np.interp(mid, q_prof, r_prof)
+    gravity, r_mid, (q_prof, r_prof, _) = sed.shell_gravity_cgs(profile, mid)
     # top of the C/O core: outer edge of the outermost shell that holds core matter
     core_top = float(np.interp(edges[1:][weight > 0].max(), q_prof, r_prof)) if np.any(weight > 0) else 0.0
     x_sol_nf = None
@@ -382,7 +381,6 @@ def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profile
 
     cap = np.empty((n_m, n_tc))
     eps_nu = np.empty((n_m, n_tc))
-    eps_ne = np.empty((n_m, n_tc))
     qc = np.zeros((n_m, n_tc))
     e_lat = np.zeros((n_m, n_tc))
     e_sep = np.zeros((n_m, n_tc))
@@ -401,7 +399,7 @@ def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profile
             e_sep[i] = _cumulative_on_grid(tc, st["t_start"], st["t_freeze"], st["separation"])
         sums = budget.shell_sums(tc, st["rho"], st["weight"], st["mix"], st["t_freeze"], st["gravity"], sw,
                                  x_solid_fractions=st["x_solid_nf"])
-        cap[i], eps_nu[i], eps_ne[i] = sums["cap_kb_per_g"], sums["eps_nu"], sums["eps_ne22"]
+        cap[i], eps_nu[i] = sums["cap_kb_per_g"], sums["eps_nu"]
         if sw.ne22_sedimentation:
             e_cap[i] = sed.settling_energy_cap_erg(p, mass_g[i], sw.ne22_mass_fraction)
             eps_ne_shell[i] = sums["eps_ne22_shell"]
@@ -415,7 +413,6 @@ def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profile
     l_photon = 10.0 ** env.log_lum(masses[:, None], log_tc[None, :]) * _L_SUN_ERG_S
     l_photon = np.broadcast_to(l_photon, (n_m, n_tc))
     l_nu = eps_nu * mass_g[:, None]
-    l_ne = eps_ne * mass_g[:, None]
     l_out = l_photon + l_nu
     dx = dlog_tc * np.log(10.0)
     d_release = np.diff(e_lat, axis=1) + np.diff(e_sep, axis=1)    # erg released per interval (>= 0)
@@ -427,12 +424,11 @@ def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profile
     # shell it is in.
     rows = np.arange(n_m)
 
-    def _front_heat(k):
-        active = r_mid < r_front[:, None]
+    def _front_heat(k, active):
         return np.sum(np.where(active, eps_ne_shell[:, k, :], 0.0), axis=1) * mass_g
 
-    def _front_speed(k):
-        j = np.clip(np.sum(r_mid < r_front[:, None], axis=1) - 1, 0, n_shell - 1)
+    def _front_speed(k, active):
+        j = np.clip(np.sum(active, axis=1) - 1, 0, n_shell - 1)
         return sed.drift_speed_cm_s(eps_ne_shell[rows, k, j], weights[rows, j], gravities[rows, j],
                                     sw.ne22_mass_fraction)
 
@@ -445,16 +441,16 @@ def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profile
     stall_nodes = 0
     for k in range(n_tc - 1):
         phi = np.where(has_cap, np.clip(1.0 - released / safe_cap, 0.0, 1.0), 0.0)
-        stall = phi * _front_heat(k) > limit * l_out[:, k]
+        active = r_mid < r_front[:, None]                           # shells below the front
+        l_front0, l_front1 = _front_heat(k, active), _front_heat(k + 1, active)
+        stall = phi * l_front0 > limit * l_out[:, k]
         t_stall = np.zeros(n_m)
         if np.any(stall):
             stall_nodes += int(np.sum(stall))
-            l_k = _front_heat(k)
-            drain = np.where(stall, safe_cap * (phi - limit * l_out[:, k] / np.where(stall, l_k, 1.0)), 0.0)
+            drain = np.where(stall, safe_cap * (phi - limit * l_out[:, k] / np.where(stall, l_front0, 1.0)), 0.0)
             t_stall = drain / (l_out[:, k] * (1.0 + limit)) * 2.0     # heating falls from L_out to limit*L_out
             released = released + drain
             phi = np.where(has_cap, np.clip(1.0 - released / safe_cap, 0.0, 1.0), 0.0)
-        l_front0, l_front1 = _front_heat(k), _front_heat(k + 1)
         h0, h1 = phi * l_front0, phi * l_front1
         net0 = np.maximum(l_out[:, k] - h0, NET_LOSS_FLOOR * l_out[:, k])
         net1 = np.maximum(l_out[:, k + 1] - h1, NET_LOSS_FLOOR * l_out[:, k + 1])
@@ -465,7 +461,7 @@ def cooling_tracks(masses_msun, envelope="He", core="CO", switches=None, profile
         l_ne_used[:, k + 1] = h1
         released = np.minimum(released + 0.5 * (h0 + h1) * step, e_cap)
         if sw.ne22_sedimentation:
-            r_front = np.maximum(r_front - _front_speed(k) * dt[:, k], 0.0)
+            r_front = np.maximum(r_front - _front_speed(k, active) * dt[:, k], 0.0)
     f = dU_dT * tc[None, :] / np.maximum(l_out - l_ne_used, NET_LOSS_FLOOR * l_out)
     # ages from T = infinity: the integrand above the start continued as a power law
     slope = np.log(f[:, 1] / f[:, 0]) / dx                          # d ln f / d ln(1/T) > 0
