@@ -85,9 +85,10 @@ def shell_sums(tc, rho, weight, mix, t_freeze, gravity, sw, x_solid_fractions=No
     Returns
     -------
     dict of (n_tc,) arrays
-        ``cap_kb_per_g`` (heat capacity, k_B per gram), ``eps_nu`` (erg g^-1 s^-1),
-        ``eps_ne22`` (erg g^-1 s^-1), all averaged over the star's mass; and the (n_tc, n_shell)
-        array ``eps_ne22_shell``, each shell's share of ``eps_ne22`` (zero in solid shells).
+        ``cap_kb_per_g`` (heat capacity, k_B per gram) and ``eps_nu`` (erg g^-1 s^-1), averaged over
+        the star's mass; and the (n_tc, n_shell) array ``eps_ne22_shell``, each shell's share of the
+        22Ne settling heat (erg g^-1 s^-1 of the star; zero in solid shells; its sum over shells is the
+        whole star's rate, which the depletion front of :mod:`~.tracks` restricts).
     """
     n_tc, n_shell = tc.size, rho.size
     nf_liq = mix.number_fractions()
@@ -98,7 +99,7 @@ def shell_sums(tc, rho, weight, mix, t_freeze, gravity, sw, x_solid_fractions=No
     electrons_per_g = ye / (M_U_SI * 1e3)
     abar, zbar = mix.abar, mix.zbar
     z53 = np.sum(nf_liq * mix.z ** (5.0 / 3.0), axis=-1)
-    out = {k: np.zeros(n_tc) for k in ("cap_kb_per_g", "eps_nu", "eps_ne22")}
+    out = {k: np.zeros(n_tc) for k in ("cap_kb_per_g", "eps_nu")}
     out["eps_ne22_shell"] = np.zeros((n_tc, n_shell))
     step = max(1, BLOCK_ELEMENTS // max(n_shell, 1))
     for lo in range(0, n_tc, step):
@@ -122,5 +123,4 @@ def shell_sums(tc, rho, weight, mix, t_freeze, gravity, sw, x_solid_fractions=No
                                             sw.ne22_mass_fraction)
             shell_heat = np.where(solid, 0.0, weight * heat)
             out["eps_ne22_shell"][lo:lo + step] = shell_heat
-            out["eps_ne22"][lo:lo + step] = np.sum(shell_heat, axis=1)
     return out
